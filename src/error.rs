@@ -1,0 +1,74 @@
+//! Errors: bad input (exit status 2) and everything else (exit status 1).
+
+use std::fmt;
+
+/// A problem with the user's input, located in a file. Displays as one line:
+/// `FILE:LINE:COL: key: reason`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct InputError {
+    /// The file as the user named it (or `<command line>` for arguments).
+    pub file: String,
+    /// One-based line.
+    pub line: usize,
+    /// One-based column, in characters.
+    pub col: usize,
+    /// Dotted key path (`source[2].radius`), empty for the file as a whole.
+    pub key: String,
+    /// What is wrong and, where we can tell, how to fix it.
+    pub reason: String,
+}
+
+impl fmt::Display for InputError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let reason = self.reason.replace('\n', " ");
+        if self.key.is_empty() {
+            write!(f, "{}:{}:{}: {}", self.file, self.line, self.col, reason)
+        } else {
+            write!(
+                f,
+                "{}:{}:{}: {}: {}",
+                self.file, self.line, self.col, self.key, reason
+            )
+        }
+    }
+}
+
+impl std::error::Error for InputError {}
+
+/// Any failure of a command.
+#[derive(Debug)]
+pub enum Error {
+    /// Bad scene or arguments: exit status 2.
+    Input(InputError),
+    /// A bad command-line argument that has no file location: exit status 2.
+    Usage(String),
+    /// Anything else (I/O, a result the solver could not reach): exit status 1.
+    Run(String),
+}
+
+impl Error {
+    /// The process exit status for this error.
+    pub fn exit_code(&self) -> i32 {
+        match self {
+            Error::Input(_) | Error::Usage(_) => 2,
+            Error::Run(_) => 1,
+        }
+    }
+}
+
+impl fmt::Display for Error {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Error::Input(e) => e.fmt(f),
+            Error::Usage(m) | Error::Run(m) => f.write_str(m),
+        }
+    }
+}
+
+impl std::error::Error for Error {}
+
+impl From<InputError> for Error {
+    fn from(e: InputError) -> Self {
+        Error::Input(e)
+    }
+}

@@ -1,0 +1,105 @@
+//! The `strayflux` command: parse flags, run a command from the library, print, and set
+//! the exit status (0 done, 1 failure, 2 bad input, 3 over the limit with --strict).
+
+use clap::{Parser, Subcommand};
+use std::io::Write;
+use std::path::PathBuf;
+use std::process::ExitCode;
+use strayflux::app;
+
+const CAUTIONS: &str = "\
+Cautions: results are estimates for design, not compliance evidence; confirm them by
+measurement. The model is magnetic quasi-static (valid well inside λ/2π of the source),
+treats conductors as thin filaments (no skin or proximity effect in the windings) and
+does not model ferromagnetic cores: use a dipole or measured data for cored parts.
+Sources of interest often run from mains or carry large currents: follow local codes
+and licensed practice when you measure them.";
+
+/// Magnetic coupling from a source (transformer, inductor, coil, cable pair) into a
+/// victim loop: mutual inductance and induced EMF at every spectral line.
+#[derive(Parser)]
+#[command(name = "strayflux", version, about, after_help = CAUTIONS)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Parse and validate a scene; summarise every source, victim and spectral line.
+    #[command(after_help = CAUTIONS)]
+    Check {
+        /// Scene file (TOML).
+        scene: PathBuf,
+        /// Print one JSON document instead of the summary.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Mutual inductance and induced EMF of every source in every victim, with totals,
+    /// limits and margins.
+    #[command(after_help = CAUTIONS)]
+    Couple {
+        /// Scene file (TOML).
+        scene: PathBuf,
+        /// Print one JSON document instead of the tables.
+        #[arg(long)]
+        json: bool,
+        /// Exit with status 3 when any victim exceeds its limit.
+        #[arg(long)]
+        strict: bool,
+    },
+    /// The B phasor of every spectral line at given points.
+    #[command(after_help = CAUTIONS)]
+    Probe {
+        /// Scene file (TOML).
+        scene: PathBuf,
+        /// A point X,Y,Z in metres, or with one unit after the last number: "10,0,5 mm".
+        /// Repeat for more points.
+        #[arg(long, value_name = "X,Y,Z", allow_hyphen_values = true)]
+        at: Vec<String>,
+        /// A CSV of points, one x,y,z per row; a header such as x_mm,y_mm,z_mm sets the
+        /// unit (metres otherwise).
+        #[arg(long, value_name = "FILE.csv")]
+        points: Option<PathBuf>,
+        /// Print one JSON document instead of the tables.
+        #[arg(long)]
+        json: bool,
+    },
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let result = match &cli.command {
+        Command::Check { scene, json } => app::check(scene, *json),
+        Command::Couple {
+            scene,
+            json,
+            strict,
+        } => app::couple(scene, *json, *strict),
+        Command::Probe {
+            scene,
+            at,
+            points,
+            json,
+        } => app::probe_points(scene, at, points.as_deref(), *json),
+    };
+    match result {
+        Ok(outcome) => {
+            for w in &outcome.warnings {
+                eprintln!("warning: {w}");
+            }
+            let mut out = std::io::stdout().lock();
+            if out.write_all(outcome.stdout.as_bytes()).is_err() || out.flush().is_err() {
+                return ExitCode::from(1);
+            }
+            ExitCode::from(outcome.exit as u8)
+        }
+        Err(e) => {
+            match &e {
+                strayflux::Error::Input(_) => eprintln!("{e}"),
+                _ => eprintln!("strayflux: {e}"),
+            }
+            ExitCode::from(e.exit_code() as u8)
+        }
+    }
+}

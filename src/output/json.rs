@@ -1,0 +1,174 @@
+//! Machine-readable output: one JSON document per command, keys as in the interface
+//! contract (snake_case, unit in the name).
+
+use crate::Scene;
+use crate::coupling::VictimReport;
+use crate::probe::ProbePoint;
+use serde::Serialize;
+
+#[derive(Serialize)]
+struct CheckDoc {
+    sources: Vec<CheckSource>,
+    victims: Vec<CheckVictim>,
+    lines_hz: Vec<f64>,
+    near_field_limit_m: f64,
+}
+
+#[derive(Serialize)]
+struct CheckSource {
+    id: String,
+    kind: String,
+    segments: usize,
+    wire_length_m: f64,
+    dipole_moment_a_m2_per_a: f64,
+}
+
+#[derive(Serialize)]
+struct CheckVictim {
+    id: String,
+    area_m2: f64,
+    self_inductance_h: f64,
+}
+
+/// `check --json`.
+pub fn check(scene: &Scene, lines_hz: &[f64]) -> String {
+    let doc = CheckDoc {
+        sources: scene
+            .sources
+            .iter()
+            .map(|s| CheckSource {
+                id: s.id.clone(),
+                kind: s.kind.clone(),
+                segments: s.conductors.segment_count(),
+                wire_length_m: s.conductors.wire_length(),
+                dipole_moment_a_m2_per_a: s.conductors.dipole_moment_per_amp().norm(),
+            })
+            .collect(),
+        victims: scene
+            .victims
+            .iter()
+            .map(|v| CheckVictim {
+                id: v.id.clone(),
+                area_m2: v.area,
+                self_inductance_h: v.self_inductance,
+            })
+            .collect(),
+        lines_hz: lines_hz.to_vec(),
+        near_field_limit_m: scene.near_field_limit(),
+    };
+    to_string(&doc)
+}
+
+#[derive(Serialize)]
+struct CoupleDoc {
+    victims: Vec<CoupleVictim>,
+}
+
+#[derive(Serialize)]
+struct CoupleVictim {
+    id: String,
+    limit_v_rms: Option<f64>,
+    total_emf_v_rms: f64,
+    margin_db: Option<f64>,
+    pass: Option<bool>,
+    sources: Vec<CoupleSource>,
+}
+
+#[derive(Serialize)]
+struct CoupleSource {
+    id: String,
+    mutual_inductance_h: f64,
+    lines: Vec<CoupleLine>,
+}
+
+#[derive(Serialize)]
+struct CoupleLine {
+    frequency_hz: f64,
+    current_a_peak: f64,
+    emf_v_peak: f64,
+    emf_v_rms: f64,
+    emf_phase_deg: f64,
+    shielding_db: f64,
+}
+
+/// `couple --json`. A margin that is infinite (zero EMF) is written as null.
+pub fn couple(reports: &[VictimReport]) -> String {
+    let victims = reports
+        .iter()
+        .map(|r| CoupleVictim {
+            id: r.id.clone(),
+            limit_v_rms: r.limit,
+            total_emf_v_rms: r.total_rms,
+            margin_db: r.margin_db().filter(|m| m.is_finite()),
+            pass: r.pass(),
+            sources: r
+                .sources
+                .iter()
+                .map(|s| CoupleSource {
+                    id: s.id.clone(),
+                    mutual_inductance_h: s.mutual_inductance,
+                    lines: s
+                        .lines
+                        .iter()
+                        .map(|l| CoupleLine {
+                            frequency_hz: l.frequency,
+                            current_a_peak: l.current.norm(),
+                            emf_v_peak: l.emf.norm(),
+                            emf_v_rms: l.emf.norm() / std::f64::consts::SQRT_2,
+                            emf_phase_deg: l.emf.arg().to_degrees(),
+                            shielding_db: l.shielding_db,
+                        })
+                        .collect(),
+                })
+                .collect(),
+        })
+        .collect();
+    to_string(&CoupleDoc { victims })
+}
+
+#[derive(Serialize)]
+struct ProbeDoc {
+    points: Vec<ProbeJsonPoint>,
+}
+
+#[derive(Serialize)]
+struct ProbeJsonPoint {
+    position_m: [f64; 3],
+    lines: Vec<ProbeJsonLine>,
+}
+
+#[derive(Serialize)]
+struct ProbeJsonLine {
+    frequency_hz: f64,
+    b_t_peak: [[f64; 2]; 3],
+    b_t_rms: f64,
+}
+
+/// `probe --json`.
+pub fn probe(points: &[ProbePoint]) -> String {
+    let points = points
+        .iter()
+        .map(|p| ProbeJsonPoint {
+            position_m: [p.position.x, p.position.y, p.position.z],
+            lines: p
+                .lines
+                .iter()
+                .map(|l| ProbeJsonLine {
+                    frequency_hz: l.frequency,
+                    b_t_peak: l.b.map(|c| [c.re, c.im]),
+                    b_t_rms: l.b_rms(),
+                })
+                .collect(),
+        })
+        .collect();
+    to_string(&ProbeDoc { points })
+}
+
+fn to_string<T: Serialize>(doc: &T) -> String {
+    // Serialising plain structs of numbers and strings cannot fail; non-finite floats
+    // become null.
+    let mut s =
+        serde_json::to_string_pretty(doc).unwrap_or_else(|e| format!("{{\"error\": \"{e}\"}}"));
+    s.push('\n');
+    s
+}

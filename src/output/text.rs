@@ -1,0 +1,196 @@
+//! Human-readable reports for the terminal.
+
+use crate::Scene;
+use crate::coupling::VictimReport;
+use crate::probe::ProbePoint;
+use crate::units::{format_area, format_si};
+use std::fmt::Write;
+
+fn si(x: f64, unit: &str) -> String {
+    format_si(x, unit, 4)
+}
+
+fn title(out: &mut String, command: &str, scene: &Scene) {
+    if scene.title.is_empty() {
+        let _ = writeln!(out, "{command}");
+    } else {
+        let _ = writeln!(out, "{command}: {}", scene.title);
+    }
+}
+
+/// `check`: one block per element and the spectrum.
+pub fn check(scene: &Scene, lines_hz: &[f64]) -> String {
+    let mut out = String::new();
+    title(&mut out, "scene check", scene);
+    let _ = writeln!(
+        out,
+        "solver: tolerance {:e}, default wire radius {}",
+        scene.tolerance,
+        si(scene.wire_radius, "m")
+    );
+    for s in &scene.sources {
+        let c = &s.conductors;
+        let _ = writeln!(out, "\nsource {} ({})", s.id, s.kind);
+        if c.dipoles.is_empty() {
+            let _ = writeln!(
+                out,
+                "  {} straight segments, {} of wire",
+                c.segment_count(),
+                si(c.wire_length(), "m")
+            );
+        } else {
+            let _ = writeln!(out, "  point dipole at {}", fmt_point(&s.frame.origin));
+        }
+        let m = c.dipole_moment_per_amp();
+        let _ = writeln!(
+            out,
+            "  dipole moment {} per A ({:.3e} A·m²/A along [{:.3}, {:.3}, {:.3}])",
+            si(m.norm(), "A·m²"),
+            m.norm(),
+            safe_unit(m.x, m.norm()),
+            safe_unit(m.y, m.norm()),
+            safe_unit(m.z, m.norm())
+        );
+        for l in &s.lines {
+            let _ = writeln!(
+                out,
+                "  line {:>12}  {:>12} peak  phase {:7.2}°",
+                si(l.frequency, "Hz"),
+                si(l.current.norm(), "A"),
+                l.current.arg().to_degrees()
+            );
+        }
+    }
+    for v in &scene.victims {
+        let _ = writeln!(
+            out,
+            "\nvictim {} ({}, {} turn{})",
+            v.id,
+            v.kind,
+            v.turns,
+            plural(v.turns)
+        );
+        let _ = writeln!(
+            out,
+            "  area {} per turn, self-inductance {} (wire radius {})",
+            format_area(v.area, 4),
+            si(v.self_inductance, "H"),
+            si(v.wire_radius, "m")
+        );
+        match v.limit {
+            Some(l) => {
+                let _ = writeln!(out, "  limit {} rms", si(l, "V"));
+            }
+            None => {
+                let _ = writeln!(out, "  no limit set");
+            }
+        }
+    }
+    let _ = writeln!(
+        out,
+        "\n{} spectral line{}; near-field limit λ/2π at {}: {}",
+        lines_hz.len(),
+        plural(lines_hz.len() as f64),
+        si(scene.highest_frequency(), "Hz"),
+        si(scene.near_field_limit(), "m")
+    );
+    out
+}
+
+/// `couple`: per victim, per source, per line, then the total and the verdict.
+pub fn couple(scene: &Scene, reports: &[VictimReport]) -> String {
+    let mut out = String::new();
+    title(&mut out, "coupling", scene);
+    for (r, v) in reports.iter().zip(&scene.victims) {
+        let _ = writeln!(
+            out,
+            "\nvictim {}  ({}, {} turn{}, {} per turn)",
+            r.id,
+            v.kind,
+            v.turns,
+            plural(v.turns),
+            format_area(v.area, 4)
+        );
+        for s in &r.sources {
+            let _ = writeln!(
+                out,
+                "  from {}: mutual inductance M = {}",
+                s.id,
+                si(s.mutual_inductance, "H")
+            );
+            let _ = writeln!(
+                out,
+                "    {:>12}  {:>12}  {:>12}  {:>12}  {:>8}",
+                "frequency", "current pk", "EMF pk", "EMF rms", "phase"
+            );
+            for l in &s.lines {
+                let _ = writeln!(
+                    out,
+                    "    {:>12}  {:>12}  {:>12}  {:>12}  {:>7.2}°",
+                    si(l.frequency, "Hz"),
+                    si(l.current.norm(), "A"),
+                    si(l.emf.norm(), "V"),
+                    si(l.emf.norm() / std::f64::consts::SQRT_2, "V"),
+                    l.emf.arg().to_degrees()
+                );
+            }
+        }
+        let _ = write!(out, "  total EMF {} rms", si(r.total_rms, "V"));
+        match (r.limit, r.margin_db(), r.pass()) {
+            (Some(l), Some(m), Some(p)) => {
+                let verdict = if p { "within limit" } else { "OVER LIMIT" };
+                let _ = writeln!(
+                    out,
+                    "; limit {} rms; margin {:+.1} dB: {verdict}",
+                    si(l, "V"),
+                    m
+                );
+            }
+            _ => {
+                let _ = writeln!(out, "; no limit set");
+            }
+        }
+    }
+    if reports.is_empty() {
+        let _ = writeln!(out, "\nthe scene has no [[victim]]: nothing to couple");
+    }
+    out
+}
+
+/// `probe`: one block per point.
+pub fn probe(points: &[ProbePoint]) -> String {
+    let mut out = String::new();
+    for p in points {
+        let _ = writeln!(out, "point {}", fmt_point(&p.position));
+        let _ = writeln!(
+            out,
+            "  {:>12}  {:>12}  {:>24}  {:>24}  {:>24}",
+            "frequency", "|B| rms", "Bx pk (re, im)", "By pk (re, im)", "Bz pk (re, im)"
+        );
+        for l in &p.lines {
+            let comp = |k: usize| format!("{:+.4e}, {:+.4e}", l.b[k].re, l.b[k].im);
+            let _ = writeln!(
+                out,
+                "  {:>12}  {:>12}  {:>24}  {:>24}  {:>24}",
+                si(l.frequency, "Hz"),
+                si(l.b_rms(), "T"),
+                comp(0),
+                comp(1),
+                comp(2)
+            );
+        }
+    }
+    out
+}
+
+fn fmt_point(p: &crate::field::Vec3) -> String {
+    format!("({:.6}, {:.6}, {:.6}) m", p.x, p.y, p.z)
+}
+
+fn safe_unit(c: f64, n: f64) -> f64 {
+    if n > 0.0 { c / n } else { 0.0 }
+}
+
+fn plural(n: f64) -> &'static str {
+    if n == 1.0 { "" } else { "s" }
+}

@@ -1,0 +1,69 @@
+//! B phasors of every spectral line at chosen points.
+
+use crate::Scene;
+use crate::field::{Vec3, b_at_points};
+use crate::spectrum::same_frequency;
+use num_complex::Complex64;
+
+/// The field of one spectral line at one point.
+#[derive(Clone, Debug)]
+pub struct ProbeLine {
+    /// Line frequency, Hz.
+    pub frequency: f64,
+    /// B phasor, T peak, per component (x, y, z); lines of several sources at this
+    /// frequency are summed as phasors.
+    pub b: [Complex64; 3],
+}
+
+impl ProbeLine {
+    /// rms of |B(t)| over a period, T: √((|Bx|² + |By|² + |Bz|²)/2).
+    pub fn b_rms(&self) -> f64 {
+        (self.b.iter().map(|c| c.norm_sqr()).sum::<f64>() / 2.0).sqrt()
+    }
+}
+
+/// The field at one point, line by line in ascending frequency.
+#[derive(Clone, Debug)]
+pub struct ProbePoint {
+    /// Position, m.
+    pub position: Vec3,
+    /// One entry per distinct frequency.
+    pub lines: Vec<ProbeLine>,
+}
+
+/// B of every line of every source at `points` (m).
+pub fn probe(scene: &Scene, points: &[Vec3]) -> Vec<ProbePoint> {
+    let per_source: Vec<Vec<Vec3>> = scene
+        .sources
+        .iter()
+        .map(|s| b_at_points(&s.conductors, points))
+        .collect();
+    let mut freqs: Vec<f64> = scene
+        .sources
+        .iter()
+        .flat_map(|s| s.lines.iter().map(|l| l.frequency))
+        .collect();
+    freqs.sort_by(f64::total_cmp);
+    freqs.dedup_by(|a, b| same_frequency(*a, *b));
+    points
+        .iter()
+        .enumerate()
+        .map(|(p, &position)| {
+            let lines = freqs
+                .iter()
+                .map(|&f| {
+                    let mut b = [Complex64::new(0.0, 0.0); 3];
+                    for (s, field) in scene.sources.iter().zip(&per_source) {
+                        for l in s.lines.iter().filter(|l| same_frequency(l.frequency, f)) {
+                            for (k, bk) in b.iter_mut().enumerate() {
+                                *bk += l.current * field[p][k];
+                            }
+                        }
+                    }
+                    ProbeLine { frequency: f, b }
+                })
+                .collect();
+            ProbePoint { position, lines }
+        })
+        .collect()
+}

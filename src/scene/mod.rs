@@ -1,0 +1,353 @@
+//! Scene files: TOML as written → a validated [`Scene`] in SI units.
+//!
+//! Loading runs in two stages. `toml` parses the text into a tree that keeps every
+//! value's byte span; [`reader`] walks that tree, checking types, units, ranges and
+//! unknown keys, and [`source`] / [`victim`] build the geometry the solver trusts. Any
+//! problem stops the load with one located [`InputError`].
+
+mod current;
+pub mod reader;
+mod source;
+mod victim;
+
+use crate::error::InputError;
+use crate::field::{Conductors, Vec3};
+use crate::geometry::{Edge, Frame};
+use crate::spectrum::{Line, near_field_limit};
+use crate::units::Dimension;
+use reader::{Doc, Table, did_you_mean};
+use std::path::Path;
+
+/// Default relative accuracy of fields, flux and M.
+pub const DEFAULT_TOLERANCE: f64 = 1e-6;
+/// Default conductor radius, m (0.1 mm).
+pub const DEFAULT_WIRE_RADIUS: f64 = 1e-4;
+
+/// A validated scene, all quantities in SI units.
+#[derive(Clone, Debug)]
+pub struct Scene {
+    /// Free-text title.
+    pub title: String,
+    /// Relative accuracy target for fields, flux and M.
+    pub tolerance: f64,
+    /// Default conductor radius, m.
+    pub wire_radius: f64,
+    /// Field sources in file order.
+    pub sources: Vec<Source>,
+    /// Victim loops in file order.
+    pub victims: Vec<Victim>,
+    /// Warnings found while loading (results outside the model, unclosed paths).
+    pub warnings: Vec<String>,
+}
+
+/// A source: conductors placed in the scene and the spectral lines of their current.
+#[derive(Clone, Debug)]
+pub struct Source {
+    /// Unique id.
+    pub id: String,
+    /// Kind as written (`loop`, `polygon`, ...).
+    pub kind: String,
+    /// Placement.
+    pub frame: Frame,
+    /// Filaments and dipoles, per ampere of the source current.
+    pub conductors: Conductors,
+    /// Current spectrum, peak phasors, ascending frequency.
+    pub lines: Vec<Line>,
+}
+
+/// A victim loop: a closed path whose flux linkage gives the induced EMF.
+#[derive(Clone, Debug)]
+pub struct Victim {
+    /// Unique id.
+    pub id: String,
+    /// Kind as written (`loop`, `rectangle`, `polygon`, `trace`).
+    pub kind: String,
+    /// Placement; `frame.z` is the loop normal (positive EMF is right-handed about it).
+    pub frame: Frame,
+    /// The closed path, in the direction of positive EMF.
+    pub edges: Vec<Edge>,
+    /// Number of coincident turns.
+    pub turns: f64,
+    /// Allowed rms of the total EMF, V.
+    pub limit: Option<f64>,
+    /// Conductor radius, m.
+    pub wire_radius: f64,
+    /// Area of one turn, m².
+    pub area: f64,
+    /// Low-frequency self-inductance of all turns, H.
+    pub self_inductance: f64,
+}
+
+impl Scene {
+    /// Reads and validates the scene file at `path`.
+    pub fn load(path: &Path) -> Result<Scene, InputError> {
+        let name = path.display().to_string();
+        let bytes = std::fs::read(path).map_err(|e| InputError {
+            file: name.clone(),
+            line: 1,
+            col: 1,
+            key: String::new(),
+            reason: format!("cannot read the scene file: {e}"),
+        })?;
+        let text = String::from_utf8(bytes).map_err(|e| {
+            let doc = Doc::new(&name, "");
+            let _ = doc;
+            InputError {
+                file: name.clone(),
+                line: 1 + e.as_bytes()[..e.utf8_error().valid_up_to()]
+                    .iter()
+                    .filter(|&&b| b == b'\n')
+                    .count(),
+                col: 1,
+                key: String::new(),
+                reason: "the scene file is not UTF-8 text".into(),
+            }
+        })?;
+        Scene::parse(&name, &text)
+    }
+
+    /// Validates scene text; `name` is used in messages.
+    pub fn parse(name: &str, text: &str) -> Result<Scene, InputError> {
+        let doc = Doc::new(name, text);
+        let root = toml::de::DeTable::parse(text).map_err(|e| {
+            let span = e.span().unwrap_or(0..0);
+            let msg = e.message().lines().next().unwrap_or("invalid TOML").trim();
+            doc.error(&span, "", format!("not valid TOML: {msg}"))
+        })?;
+        let root = Table::root(&doc, &root);
+        build(&root)
+    }
+
+    /// λ/2π at the highest line of any source, m.
+    pub fn near_field_limit(&self) -> f64 {
+        near_field_limit(self.highest_frequency())
+    }
+
+    /// Highest line frequency of any source, Hz.
+    pub fn highest_frequency(&self) -> f64 {
+        self.sources
+            .iter()
+            .flat_map(|s| s.lines.iter().map(|l| l.frequency))
+            .fold(0.0, f64::max)
+    }
+
+    /// A warning if `point` (m) is farther than a tenth of λ/2π from every source.
+    pub fn far_point_warning(&self, what: &str, point: &Vec3) -> Option<String> {
+        let limit = self.near_field_limit();
+        let nearest = self
+            .sources
+            .iter()
+            .map(|s| s.conductors.distance_to(point))
+            .fold(f64::INFINITY, f64::min);
+        (nearest.is_finite() && nearest > 0.1 * limit).then(|| {
+            format!(
+                "{what} is {nearest:.3e} m from the nearest source, beyond a tenth of λ/2π \
+                 ({limit:.3e} m at the highest line): the quasi-static model may not hold there"
+            )
+        })
+    }
+}
+
+/// Top-level tables, those of later versions refused by name.
+const TOP_KEYS: &[&str] = &["scene", "solver", "source", "victim"];
+const LATER_KEYS: &[&str] = &["shield", "enclosure", "sweep", "map"];
+
+fn build(root: &Table<'_, '_>) -> Result<Scene, InputError> {
+    for later in LATER_KEYS {
+        if root.has(later) {
+            return Err(root.error_at(
+                later,
+                format!("[[{later}]] is not supported yet in this version of strayflux"),
+            ));
+        }
+    }
+    let title = match root.get("scene") {
+        Some(v) => {
+            let t = v.table()?;
+            let title = match t.get("title") {
+                Some(s) => s.string()?.to_string(),
+                None => String::new(),
+            };
+            t.finish(&[], "[scene]")?;
+            title
+        }
+        None => String::new(),
+    };
+    let (tolerance, wire_radius) = parse_solver(root)?;
+    let ctx = source::Context {
+        tolerance,
+        wire_radius,
+    };
+    let mut warnings = Vec::new();
+    let mut ids: Vec<String> = Vec::new();
+    let mut sources = Vec::new();
+    for item in array_of_tables(root, "source")? {
+        let s = source::parse(&item, &ctx, &mut warnings)?;
+        check_unique(&item, &s.id, &mut ids)?;
+        sources.push(s);
+    }
+    let mut victims = Vec::new();
+    for item in array_of_tables(root, "victim")? {
+        let v = victim::parse(&item, &ctx)?;
+        check_unique(&item, &v.id, &mut ids)?;
+        victims.push(v);
+    }
+    root.finish(TOP_KEYS, "a scene file")?;
+    if sources.is_empty() {
+        return Err(root.error("the scene has no [[source]]: add at least one"));
+    }
+    let scene = Scene {
+        title,
+        tolerance,
+        wire_radius,
+        sources,
+        victims,
+        warnings,
+    };
+    let mut extra = Vec::new();
+    for v in &scene.victims {
+        let centre = v.frame.origin;
+        extra.extend(scene.far_point_warning(&format!("victim \"{}\"", v.id), &centre));
+        extra.extend(contact_warning(&scene, v));
+    }
+    let mut scene = scene;
+    scene.warnings.extend(extra);
+    Ok(scene)
+}
+
+fn parse_solver(root: &Table<'_, '_>) -> Result<(f64, f64), InputError> {
+    let Some(v) = root.get("solver") else {
+        return Ok((DEFAULT_TOLERANCE, DEFAULT_WIRE_RADIUS));
+    };
+    let t = v.table()?;
+    let tolerance = match t.get("tolerance") {
+        Some(x) => {
+            let tol = x.number()?;
+            if !(1e-12..=0.1).contains(&tol) {
+                return Err(x.error(format!(
+                    "must be between 1e-12 and 0.1 (a relative accuracy), got {tol}"
+                )));
+            }
+            tol
+        }
+        None => DEFAULT_TOLERANCE,
+    };
+    let wire_radius = match t.get("wire_radius") {
+        Some(x) => x.positive(Dimension::Length)?,
+        None => DEFAULT_WIRE_RADIUS,
+    };
+    t.finish(&[], "[solver]")?;
+    Ok((tolerance, wire_radius))
+}
+
+/// The tables of `[[name]]`, each keyed `name[n]` (one-based).
+fn array_of_tables<'a, 'i>(
+    root: &Table<'a, 'i>,
+    name: &str,
+) -> Result<Vec<Table<'a, 'i>>, InputError> {
+    let Some(v) = root.get(name) else {
+        return Ok(Vec::new());
+    };
+    if v.is_table() {
+        return Err(v.error(format!(
+            "write [[{name}]] (an array of tables), not [{name}]"
+        )));
+    }
+    v.array()?.iter().map(|item| item.table()).collect()
+}
+
+fn check_unique(t: &Table<'_, '_>, id: &str, ids: &mut Vec<String>) -> Result<(), InputError> {
+    if ids.iter().any(|i| i == id) {
+        return Err(t.error_at(
+            "id",
+            format!("id \"{id}\" is already used; every id must be unique"),
+        ));
+    }
+    ids.push(id.to_string());
+    Ok(())
+}
+
+/// Reads `id`: required, `[A-Za-z0-9_-]+`.
+pub(crate) fn parse_id(t: &Table<'_, '_>) -> Result<String, InputError> {
+    let v = t.require("id", "a unique name such as \"choke\"")?;
+    let id = v.string()?;
+    if id.is_empty()
+        || !id
+            .chars()
+            .all(|c| c.is_ascii_alphanumeric() || c == '_' || c == '-')
+    {
+        return Err(v.error(format!(
+            "\"{id}\" is not a valid id: use letters, digits, '_' and '-'"
+        )));
+    }
+    Ok(id.to_string())
+}
+
+/// Reads `kind` and checks it against `known`, refusing `later` kinds by name.
+pub(crate) fn parse_kind<'a>(
+    t: &Table<'a, '_>,
+    known: &[&str],
+    later: &[&str],
+) -> Result<&'a str, InputError> {
+    let v = t.require("kind", &format!("one of {}", known.join(", ")))?;
+    let kind = v.string()?;
+    if known.contains(&kind) {
+        return Ok(kind);
+    }
+    if later.contains(&kind) {
+        return Err(v.error(format!(
+            "kind \"{kind}\" is not supported yet in this version of strayflux"
+        )));
+    }
+    let hint = did_you_mean(kind, known)
+        .map(|s| format!("; did you mean \"{s}\"?"))
+        .unwrap_or_default();
+    Err(v.error(format!(
+        "unknown kind \"{kind}\"; expected one of {}{hint}",
+        known.join(", ")
+    )))
+}
+
+/// Reads the placement keys `position`, `axis`, `reference` into a frame.
+pub(crate) fn parse_frame(t: &Table<'_, '_>) -> Result<Frame, InputError> {
+    let origin = match t.get("position") {
+        Some(v) => v.vector(Dimension::Length)?,
+        None => Vec3::zeros(),
+    };
+    let axis = match t.get("axis") {
+        Some(v) => v.direction()?,
+        None => Vec3::z(),
+    };
+    let reference = match t.get("reference") {
+        Some(v) => Some((v.direction()?, v)),
+        None => None,
+    };
+    match Frame::new(origin, axis, reference.as_ref().map(|r| r.0)) {
+        Some(f) => Ok(f),
+        None => Err(match reference {
+            Some((_, v)) => {
+                v.error("`reference` is parallel to `axis`; give a direction across it")
+            }
+            None => t.error_at("axis", "cannot build a frame from this axis"),
+        }),
+    }
+}
+
+fn contact_warning(scene: &Scene, v: &Victim) -> Option<String> {
+    for s in &scene.sources {
+        let close = v.edges.iter().any(|e| {
+            (0..=64).any(|k| {
+                let p = e.point(k as f64 / 64.0);
+                s.conductors.distance_to(&p) < v.wire_radius + scene.wire_radius
+            })
+        });
+        if close {
+            return Some(format!(
+                "victim \"{}\" touches or crosses source \"{}\": the result is dominated by \
+                 the contact and depends on the wire radii",
+                v.id, s.id
+            ));
+        }
+    }
+    None
+}

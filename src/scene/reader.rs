@@ -1,0 +1,391 @@
+//! A checked walk over the parsed TOML tree that keeps every value's place in the file.
+//!
+//! Each accessor names the key it reads, so every error can say `FILE:LINE:COL: key:
+//! reason`. Tables remember which keys were read; [`Table::finish`] turns any other key
+//! into an "unknown key" error with a "did you mean" hint.
+
+use crate::error::InputError;
+use crate::field::Vec3;
+use crate::units::{Dimension, dimension_of, parse_quantity};
+use std::cell::RefCell;
+use std::ops::Range;
+use toml::Spanned;
+use toml::de::{DeTable, DeValue};
+
+/// The file being read: its name for messages and where its lines start.
+pub struct Doc {
+    name: String,
+    line_starts: Vec<usize>,
+    text_len: usize,
+    text: String,
+}
+
+impl Doc {
+    /// A document called `name` (as it should appear in messages) with contents `text`.
+    pub fn new(name: &str, text: &str) -> Self {
+        let mut line_starts = vec![0];
+        line_starts.extend(text.match_indices('\n').map(|(i, _)| i + 1));
+        Doc {
+            name: name.to_string(),
+            line_starts,
+            text_len: text.len(),
+            text: text.to_string(),
+        }
+    }
+
+    /// One-based line and column (in characters) of byte `offset`.
+    pub fn line_col(&self, offset: usize) -> (usize, usize) {
+        let offset = offset.min(self.text_len);
+        let line = self.line_starts.partition_point(|&s| s <= offset) - 1;
+        let start = self.line_starts[line];
+        let col = self.text[start..offset].chars().count();
+        (line + 1, col + 1)
+    }
+
+    /// An error at byte span `span` about `key`.
+    pub fn error(&self, span: &Range<usize>, key: &str, reason: impl Into<String>) -> InputError {
+        let (line, col) = self.line_col(span.start);
+        InputError {
+            file: self.name.clone(),
+            line,
+            col,
+            key: key.to_string(),
+            reason: reason.into(),
+        }
+    }
+}
+
+/// A located TOML value with the dotted key path that led to it.
+#[derive(Clone)]
+pub struct Value<'a, 'i> {
+    doc: &'a Doc,
+    key: String,
+    span: Range<usize>,
+    value: &'a DeValue<'i>,
+}
+
+/// A located TOML table whose keys are tracked.
+pub struct Table<'a, 'i> {
+    doc: &'a Doc,
+    key: String,
+    span: Range<usize>,
+    table: &'a DeTable<'i>,
+    read: RefCell<Vec<String>>,
+}
+
+impl<'a, 'i> Table<'a, 'i> {
+    /// The document's root table.
+    pub fn root(doc: &'a Doc, root: &'a Spanned<DeTable<'i>>) -> Self {
+        Table::new(doc, String::new(), root.span(), root.get_ref())
+    }
+
+    fn new(doc: &'a Doc, key: String, span: Range<usize>, table: &'a DeTable<'i>) -> Self {
+        Table {
+            doc,
+            key,
+            span,
+            table,
+            read: RefCell::new(Vec::new()),
+        }
+    }
+
+    /// The key path of this table (`source[2]`).
+    pub fn key(&self) -> &str {
+        &self.key
+    }
+
+    /// The full key path of a key in this table.
+    pub fn path_of(&self, name: &str) -> String {
+        if self.key.is_empty() {
+            name.to_string()
+        } else {
+            format!("{}.{}", self.key, name)
+        }
+    }
+
+    /// An error about the table as a whole (located at its header).
+    pub fn error(&self, reason: impl Into<String>) -> InputError {
+        self.doc.error(&self.span, &self.key, reason)
+    }
+
+    /// An error about `name` in this table, at the key if present, else at the table.
+    pub fn error_at(&self, name: &str, reason: impl Into<String>) -> InputError {
+        let span = self
+            .table
+            .get_key_value(name)
+            .map(|(k, _)| k.span())
+            .unwrap_or_else(|| self.span.clone());
+        self.doc.error(&span, &self.path_of(name), reason)
+    }
+
+    /// The value of `name` if present; the key counts as read.
+    pub fn get(&self, name: &str) -> Option<Value<'a, 'i>> {
+        self.read.borrow_mut().push(name.to_string());
+        let v = self.table.get(name)?;
+        Some(Value {
+            doc: self.doc,
+            key: self.path_of(name),
+            span: v.span(),
+            value: v.get_ref(),
+        })
+    }
+
+    /// The value of `name`, or a "missing key" error naming `what` it should hold.
+    pub fn require(&self, name: &str, what: &str) -> Result<Value<'a, 'i>, InputError> {
+        self.get(name).ok_or_else(|| {
+            self.doc.error(
+                &self.span,
+                &self.path_of(name),
+                format!("missing key `{name}` ({what})"),
+            )
+        })
+    }
+
+    /// Whether `name` is present (does not count as read).
+    pub fn has(&self, name: &str) -> bool {
+        self.table.contains_key(name)
+    }
+
+    /// Fails on the first key that was never read. `also` lists keys valid elsewhere in
+    /// this kind of table (other kinds' keys) to explain why they do not apply here,
+    /// with `context` saying what the table is (`kind "loop"`).
+    pub fn finish(&self, also: &[&str], context: &str) -> Result<(), InputError> {
+        let read = self.read.borrow();
+        for (k, _) in self.table.iter() {
+            let name: &str = k.get_ref().as_ref();
+            if read.iter().any(|r| r == name) {
+                continue;
+            }
+            let reason = if also.contains(&name) {
+                format!("`{name}` is not a key of {context}")
+            } else {
+                let mut candidates: Vec<&str> = read.iter().map(String::as_str).collect();
+                candidates.extend_from_slice(also);
+                match did_you_mean(name, &candidates) {
+                    Some(s) => format!("unknown key `{name}` in {context}; did you mean `{s}`?"),
+                    None => format!(
+                        "unknown key `{name}` in {context} (keys read here: {})",
+                        read.join(", ")
+                    ),
+                }
+            };
+            return Err(self.doc.error(&k.span(), &self.path_of(name), reason));
+        }
+        Ok(())
+    }
+}
+
+impl<'a, 'i> Value<'a, 'i> {
+    /// The key path of this value.
+    pub fn key(&self) -> &str {
+        &self.key
+    }
+
+    /// An error located at this value.
+    pub fn error(&self, reason: impl Into<String>) -> InputError {
+        self.doc.error(&self.span, &self.key, reason)
+    }
+
+    fn type_error(&self, expected: &str) -> InputError {
+        self.error(format!(
+            "expected {expected}, found {}",
+            describe(self.value)
+        ))
+    }
+
+    /// A TOML string.
+    pub fn string(&self) -> Result<&'a str, InputError> {
+        match self.value {
+            DeValue::String(s) => Ok(s.as_ref()),
+            _ => Err(self.type_error("a string")),
+        }
+    }
+
+    /// A TOML boolean.
+    pub fn boolean(&self) -> Result<bool, InputError> {
+        match self.value {
+            DeValue::Boolean(b) => Ok(*b),
+            _ => Err(self.type_error("true or false")),
+        }
+    }
+
+    /// A finite number (TOML integer or float), unitless.
+    pub fn number(&self) -> Result<f64, InputError> {
+        let x = match self.value {
+            DeValue::Integer(i) => parse_integer(i.as_str(), i.radix()) as f64,
+            DeValue::Float(f) => parse_float(f.as_str()),
+            _ => return Err(self.type_error("a number")),
+        };
+        if x.is_finite() {
+            Ok(x)
+        } else {
+            Err(self.error(format!("{} is not a finite number", self.raw())))
+        }
+    }
+
+    /// A whole number at least `min`.
+    pub fn count(&self, min: i64) -> Result<u64, InputError> {
+        let DeValue::Integer(i) = self.value else {
+            return Err(self.type_error("a whole number"));
+        };
+        let n = parse_integer(i.as_str(), i.radix());
+        if n < min as i128 {
+            return Err(self.error(format!("must be at least {min}, got {n}")));
+        }
+        u64::try_from(n).map_err(|_| self.error(format!("{n} is too large")))
+    }
+
+    /// A quantity of dimension `dim`: a bare number in SI units or `"<number> <unit>"`.
+    pub fn quantity(&self, dim: Dimension) -> Result<f64, InputError> {
+        match self.value {
+            DeValue::String(s) => parse_quantity(s, dim).map_err(|e| self.error(e.0)),
+            DeValue::Integer(_) | DeValue::Float(_) => self.number(),
+            _ => Err(self.type_error(&format!(
+                "{} such as {} (or a bare number in SI units)",
+                dim.noun(),
+                dim.example()
+            ))),
+        }
+    }
+
+    /// A quantity that must be strictly positive.
+    pub fn positive(&self, dim: Dimension) -> Result<f64, InputError> {
+        let x = self.quantity(dim)?;
+        if x > 0.0 {
+            Ok(x)
+        } else {
+            Err(self.error(format!("must be greater than zero, got {}", self.raw())))
+        }
+    }
+
+    /// The items of a TOML array.
+    pub fn array(&self) -> Result<Vec<Value<'a, 'i>>, InputError> {
+        let DeValue::Array(items) = self.value else {
+            return Err(self.type_error("an array"));
+        };
+        Ok(items
+            .iter()
+            .enumerate()
+            .map(|(n, v)| Value {
+                doc: self.doc,
+                key: format!("{}[{}]", self.key, n + 1),
+                span: v.span(),
+                value: v.get_ref(),
+            })
+            .collect())
+    }
+
+    /// A vector of three quantities of dimension `dim`.
+    pub fn vector(&self, dim: Dimension) -> Result<Vec3, InputError> {
+        let items = self.array()?;
+        if items.len() != 3 {
+            return Err(self.error(format!(
+                "expected 3 components [x, y, z], found {}",
+                items.len()
+            )));
+        }
+        let mut v = Vec3::zeros();
+        for (k, item) in items.iter().enumerate() {
+            v[k] = item.quantity(dim)?;
+        }
+        Ok(v)
+    }
+
+    /// A unitless direction of three numbers, normalised; the zero vector is an error.
+    pub fn direction(&self) -> Result<Vec3, InputError> {
+        let items = self.array()?;
+        if items.len() != 3 {
+            return Err(self.error(format!(
+                "expected a direction [x, y, z], found {} components",
+                items.len()
+            )));
+        }
+        let mut v = Vec3::zeros();
+        for (k, item) in items.iter().enumerate() {
+            if matches!(item.value, DeValue::String(_)) {
+                return Err(
+                    item.error("a direction is unitless: write plain numbers like [0, 0, 1]")
+                );
+            }
+            v[k] = item.number()?;
+        }
+        let n = v.norm();
+        if n == 0.0 || !n.is_finite() {
+            return Err(self.error("the zero vector has no direction"));
+        }
+        Ok(v / n)
+    }
+
+    /// A TOML table (inline or standard).
+    pub fn table(&self) -> Result<Table<'a, 'i>, InputError> {
+        match self.value {
+            DeValue::Table(t) => Ok(Table::new(self.doc, self.key.clone(), self.span.clone(), t)),
+            _ => Err(self.type_error("a table")),
+        }
+    }
+
+    /// Whether the value is a table.
+    pub fn is_table(&self) -> bool {
+        matches!(self.value, DeValue::Table(_))
+    }
+
+    /// The value as written, for messages.
+    pub fn raw(&self) -> String {
+        match self.value {
+            DeValue::String(s) => format!("\"{s}\""),
+            DeValue::Integer(i) => i.as_str().to_string(),
+            DeValue::Float(f) => f.as_str().to_string(),
+            other => describe(other).to_string(),
+        }
+    }
+
+    /// For a string quantity with a unit of another dimension, that dimension.
+    pub fn unit_dimension(&self) -> Option<Dimension> {
+        let DeValue::String(s) = self.value else {
+            return None;
+        };
+        let sym = s.trim_start_matches(|c: char| c.is_ascii_digit() || "+-.eE ".contains(c));
+        dimension_of(sym)
+    }
+}
+
+fn describe(v: &DeValue<'_>) -> &'static str {
+    match v {
+        DeValue::String(_) => "a string",
+        DeValue::Integer(_) => "an integer",
+        DeValue::Float(_) => "a float",
+        DeValue::Boolean(_) => "a boolean",
+        DeValue::Datetime(_) => "a date-time",
+        DeValue::Array(_) => "an array",
+        DeValue::Table(_) => "a table",
+    }
+}
+
+fn parse_integer(text: &str, radix: u32) -> i128 {
+    let clean: String = text.chars().filter(|&c| c != '_').collect();
+    let (sign, body) = match clean.strip_prefix('-') {
+        Some(b) => (-1, b.to_string()),
+        None => (1, clean.trim_start_matches('+').to_string()),
+    };
+    let body = if radix == 10 {
+        body.as_str()
+    } else {
+        body.get(2..).unwrap_or("")
+    };
+    i128::from_str_radix(body, radix).map_or(i128::MAX, |n| sign * n)
+}
+
+fn parse_float(text: &str) -> f64 {
+    let clean: String = text.chars().filter(|&c| c != '_').collect();
+    clean.parse().unwrap_or(f64::NAN)
+}
+
+/// The closest candidate to a misspelt key, if it is close enough to be a typo.
+pub fn did_you_mean<'c>(name: &str, candidates: &[&'c str]) -> Option<&'c str> {
+    candidates
+        .iter()
+        .map(|c| (strsim::damerau_levenshtein(name, c), *c))
+        .filter(|(d, c)| *d <= 2.max(c.len() / 3) && *d < c.len())
+        .min_by_key(|(d, _)| *d)
+        .map(|(_, c)| c)
+}

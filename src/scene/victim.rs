@@ -1,0 +1,133 @@
+//! `[[victim]]` tables → closed edge chains, turns, limits and self-inductance.
+
+use super::reader::Table;
+use super::source::{Context, check_wire, parse_polygon};
+use super::{Victim, parse_frame, parse_id, parse_kind};
+use crate::error::InputError;
+use crate::field::Vec3;
+use crate::geometry::{Edge, Frame, rectangle_corners, vector_area};
+use crate::inductance;
+use crate::units::Dimension;
+use std::f64::consts::TAU;
+
+const KINDS: &[&str] = &["loop", "rectangle", "polygon", "trace"];
+const GEOMETRY_KEYS: &[&str] = &["radius", "width", "height", "vertices", "length", "load"];
+
+/// e^{−5/4}: a thin strip of width w has the self-GMD w·e^{−3/2} (Maxwell; Grover,
+/// "Inductance Calculations", table of GMDs), a round wire of radius a has a·e^{−1/4};
+/// equal GMDs give the round wire of the same external inductance, a = w·e^{−5/4}.
+const STRIP_TO_ROUND: f64 = 0.286_504_796_860_190_1;
+
+pub(crate) fn parse(t: &Table<'_, '_>, ctx: &Context) -> Result<Victim, InputError> {
+    let id = parse_id(t)?;
+    let kind = parse_kind(t, KINDS, &[])?;
+    let frame = parse_frame(t)?;
+    let explicit_radius = match t.get("wire_radius") {
+        Some(v) => Some(v.positive(Dimension::Length)?),
+        None => None,
+    };
+    let mut wire_radius = explicit_radius.unwrap_or(ctx.wire_radius);
+    let turns = match t.get("turns") {
+        Some(n) => n.count(1)? as f64,
+        None => 1.0,
+    };
+    let limit = match t.get("limit") {
+        Some(v) => Some(v.positive(Dimension::Voltage)?),
+        None => None,
+    };
+    if t.has("load") {
+        return Err(t.error_at(
+            "load",
+            "`load` is not supported yet in this version; the open-circuit EMF is reported",
+        ));
+    }
+    let (edges, one_turn_l) = match kind {
+        "loop" => {
+            let r = t.require("radius", "the loop radius, e.g. \"5 mm\"")?;
+            let radius = r.positive(Dimension::Length)?;
+            check_wire(&r, radius, wire_radius)?;
+            (
+                vec![circle(&frame, radius)],
+                inductance::circle(radius, wire_radius),
+            )
+        }
+        "rectangle" => {
+            let w = t.require("width", "the side along local x")?;
+            let h = t.require("height", "the side along local y")?;
+            let (wv, hv) = (
+                w.positive(Dimension::Length)?,
+                h.positive(Dimension::Length)?,
+            );
+            check_wire(&w, wv, wire_radius)?;
+            check_wire(&h, hv, wire_radius)?;
+            straight(&frame, &rectangle_corners(wv, hv), wire_radius, ctx)
+        }
+        "polygon" => {
+            let v = t.require("vertices", "an array of [x, y, z] corners")?;
+            let corners = parse_polygon(&v, wire_radius)?;
+            straight(&frame, &corners, wire_radius, ctx)
+        }
+        "trace" => {
+            let l = t.require("length", "the trace length along local x")?;
+            let h = t.require("height", "the trace's height above its return plane")?;
+            let w = t.require("width", "the trace width")?;
+            let (lv, hv) = (
+                l.positive(Dimension::Length)?,
+                h.positive(Dimension::Length)?,
+            );
+            let wv = w.positive(Dimension::Length)?;
+            if explicit_radius.is_none() {
+                wire_radius = wv * STRIP_TO_ROUND;
+            }
+            check_wire(&h, hv, wire_radius)?;
+            check_wire(&l, lv, wire_radius)?;
+            let corners = [
+                Vec3::new(-lv / 2.0, 0.0, 0.0),
+                Vec3::new(lv / 2.0, 0.0, 0.0),
+                Vec3::new(lv / 2.0, hv, 0.0),
+                Vec3::new(-lv / 2.0, hv, 0.0),
+            ];
+            straight(&frame, &corners, wire_radius, ctx)
+        }
+        _ => unreachable!("kind checked by parse_kind"),
+    };
+    t.finish(GEOMETRY_KEYS, &format!("a victim of kind \"{kind}\""))?;
+    let area = vector_area(&edges).norm();
+    Ok(Victim {
+        id,
+        kind: kind.to_string(),
+        frame,
+        edges,
+        turns,
+        limit,
+        wire_radius,
+        area,
+        self_inductance: one_turn_l * turns * turns,
+    })
+}
+
+/// The exact circle of `radius` (m) about the frame's z, counter-clockwise.
+fn circle(frame: &Frame, radius: f64) -> Edge {
+    Edge::Arc {
+        centre: frame.origin,
+        u: frame.x,
+        v: frame.y,
+        radius,
+        start: 0.0,
+        end: TAU,
+    }
+}
+
+/// Straight edges through the local `corners` and the one-turn self-inductance.
+fn straight(frame: &Frame, corners: &[Vec3], wire_radius: f64, ctx: &Context) -> (Vec<Edge>, f64) {
+    let world: Vec<Vec3> = corners.iter().map(|c| frame.point(c)).collect();
+    let n = world.len();
+    let edges = (0..n)
+        .map(|i| Edge::Line {
+            a: world[i],
+            b: world[(i + 1) % n],
+        })
+        .collect();
+    let l = inductance::polygon(&world, wire_radius, ctx.tolerance);
+    (edges, l)
+}

@@ -130,15 +130,30 @@ impl<'a, 'i> Table<'a, 'i> {
         })
     }
 
-    /// The value of `name`, or a "missing key" error naming `what` it should hold.
+    /// The value of `name`, or a "missing key" error naming `what` it should hold. When
+    /// a present key looks like a misspelling of `name`, the error points at it instead.
     pub fn require(&self, name: &str, what: &str) -> Result<Value<'a, 'i>, InputError> {
-        self.get(name).ok_or_else(|| {
-            self.doc.error(
-                &self.span,
-                &self.path_of(name),
-                format!("missing key `{name}` ({what})"),
-            )
-        })
+        if let Some(v) = self.get(name) {
+            return Ok(v);
+        }
+        let present: Vec<&str> = self.table.keys().map(|k| k.get_ref().as_ref()).collect();
+        if let Some(typo) = present
+            .iter()
+            .copied()
+            .find(|p| did_you_mean(p, &[name]).is_some())
+            && let Some((k, _)) = self.table.get_key_value(typo)
+        {
+            return Err(self.doc.error(
+                &k.span(),
+                &self.path_of(typo),
+                format!("unknown key `{typo}`; did you mean `{name}` ({what})?"),
+            ));
+        }
+        Err(self.doc.error(
+            &self.span,
+            &self.path_of(name),
+            format!("missing key `{name}` ({what})"),
+        ))
     }
 
     /// Whether `name` is present (does not count as read).

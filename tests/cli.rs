@@ -1,0 +1,464 @@
+//! The command-line surface: JSON keys, exit codes, and located one-line errors for bad
+//! input. Numbers are checked against published closed forms where the CLI is the
+//! thing being checked end to end.
+
+use serde_json::Value;
+use std::path::PathBuf;
+use std::process::{Command, Output};
+
+const MU0: f64 = 1.256_637_062_12e-6; // CODATA 2018
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_strayflux"))
+}
+
+/// Writes `text` to a fresh file named `name` in the test's scratch folder.
+fn scene(name: &str, text: &str) -> PathBuf {
+    let dir = PathBuf::from(env!("CARGO_TARGET_TMPDIR")).join("cli");
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join(name);
+    std::fs::write(&path, text).unwrap();
+    path
+}
+
+fn run(args: &[&str]) -> Output {
+    bin().args(args).output().expect("runs")
+}
+
+fn stdout_json(out: &Output) -> Value {
+    assert!(
+        out.status.success(),
+        "exit {:?}, stderr: {}",
+        out.status.code(),
+        String::from_utf8_lossy(&out.stderr)
+    );
+    serde_json::from_slice(&out.stdout).expect("stdout is one JSON document")
+}
+
+/// Complete elliptic integrals K(m), E(m) of parameter m = k² from the `ellip` crate
+/// (Carlson's algorithms as in DLMF ch. 19), independent of strayflux.
+fn k_e(m: f64) -> (f64, f64) {
+    (ellip::ellipk(m).unwrap(), ellip::ellipe(m).unwrap())
+}
+
+/// Maxwell's formula for two coaxial circles of radii a, b at axial distance d:
+/// M = μ0 √(ab) [(2/k − k) K − (2/k) E], k² = 4ab/((a+b)² + d²)
+/// (Grover, "Inductance Calculations", ch. 13; Smythe, "Static and Dynamic
+/// Electricity", 3rd ed., §7.24).
+fn maxwell_m(a: f64, b: f64, d: f64) -> f64 {
+    let m = 4.0 * a * b / ((a + b).powi(2) + d * d);
+    let k = m.sqrt();
+    let (kk, ee) = k_e(m);
+    MU0 * (a * b).sqrt() * ((2.0 / k - k) * kk - 2.0 / k * ee)
+}
+
+fn coaxial_scene(spacing_mm: f64, limit: &str) -> String {
+    format!(
+        r#"
+[scene]
+title = "two coaxial loops"
+[[source]]
+id = "drive"
+kind = "loop"
+radius = "20 mm"
+current = {{ waveform = "sine", rms = "2 A", frequency = "10 kHz" }}
+[[victim]]
+id = "pickup"
+kind = "loop"
+radius = "15 mm"
+position = ["0 mm", "0 mm", "{spacing_mm} mm"]
+limit = "{limit}"
+"#
+    )
+}
+
+#[test]
+fn couple_json_reproduces_maxwell_mutual_inductance_and_emf() {
+    for (k, d_mm) in [2.0, 10.0, 40.0].iter().enumerate() {
+        let path = scene(&format!("coax{k}.toml"), &coaxial_scene(*d_mm, "1 V"));
+        let doc = stdout_json(&run(&["couple", path.to_str().unwrap(), "--json"]));
+        let v = &doc["victims"][0];
+        let m = v["sources"][0]["mutual_inductance_h"].as_f64().unwrap();
+        let expect = maxwell_m(0.020, 0.015, d_mm * 1e-3);
+        assert!(
+            ((m - expect) / expect).abs() < 1e-6,
+            "d = {d_mm} mm: M {m} vs Maxwell {expect}"
+        );
+        // E = ω M I for a sine line (Faraday's law with Φ = M I); rms current 2 A.
+        let line = &v["sources"][0]["lines"][0];
+        let emf_rms = line["emf_v_rms"].as_f64().unwrap();
+        let expect_emf = std::f64::consts::TAU * 1e4 * expect * 2.0;
+        assert!(((emf_rms - expect_emf) / expect_emf).abs() < 1e-6);
+        assert!((line["current_a_peak"].as_f64().unwrap() - 2.0 * 2f64.sqrt()).abs() < 1e-12);
+        // −j: the EMF lags the current by 90° (E = −jωMI).
+        assert!((line["emf_phase_deg"].as_f64().unwrap() + 90.0).abs() < 1e-9);
+        assert_eq!(line["shielding_db"].as_f64().unwrap(), 0.0);
+        let total = v["total_emf_v_rms"].as_f64().unwrap();
+        assert!(((total - emf_rms) / emf_rms).abs() < 1e-12);
+        let margin = v["margin_db"].as_f64().unwrap();
+        assert!((margin - 20.0 * (1.0 / total).log10()).abs() < 1e-9);
+        assert_eq!(v["pass"], Value::Bool(total <= 1.0));
+        assert_eq!(v["limit_v_rms"].as_f64().unwrap(), 1.0);
+    }
+}
+
+#[test]
+fn couple_without_limit_gives_nulls_and_strict_exits_three_over_limit() {
+    let text = coaxial_scene(10.0, "1 V").replace("limit = \"1 V\"", "");
+    let path = scene("nolimit.toml", &text);
+    let doc = stdout_json(&run(&["couple", path.to_str().unwrap(), "--json"]));
+    let v = &doc["victims"][0];
+    assert!(v["limit_v_rms"].is_null() && v["margin_db"].is_null() && v["pass"].is_null());
+
+    let path = scene("over.toml", &coaxial_scene(10.0, "1 uV"));
+    let out = run(&["couple", path.to_str().unwrap(), "--json", "--strict"]);
+    assert_eq!(out.status.code(), Some(3));
+    let doc: Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(doc["victims"][0]["pass"], Value::Bool(false));
+    assert!(doc["victims"][0]["margin_db"].as_f64().unwrap() < 0.0);
+    // Without --strict the same scene exits 0.
+    let out = run(&["couple", path.to_str().unwrap()]);
+    assert_eq!(out.status.code(), Some(0));
+    assert!(String::from_utf8_lossy(&out.stdout).contains("OVER LIMIT"));
+}
+
+#[test]
+fn probe_json_reproduces_loop_closed_form_field() {
+    // Simpson, Lane, Immer & Youngquist, "Simple analytic expressions for the magnetic
+    // field of a circular current loop", NASA/TM-2013-217919 (2001 preprint), eqs. for
+    // B_ρ and B_z with α² = R²+r²−2Rρ, β² = R²+r²+2Rρ, m = 1 − α²/β².
+    let path = scene("probe.toml", &coaxial_scene(10.0, "1 V"));
+    let pts = [
+        (0.0, 0.0, 0.01),
+        (0.01, 0.0, 0.005),
+        (0.0, 0.025, -0.004),
+        (0.03, 0.02, 0.01),
+        (0.002, 0.0, 0.0),
+        (-0.05, 0.01, 0.03),
+    ];
+    let mut args = vec![
+        "probe".to_string(),
+        path.to_str().unwrap().to_string(),
+        "--json".into(),
+    ];
+    for (x, y, z) in pts {
+        args.push("--at".into());
+        args.push(format!("{x},{y},{z}"));
+    }
+    let out = bin().args(&args).output().unwrap();
+    let doc = stdout_json(&out);
+    let peak = 2.0 * 2f64.sqrt();
+    let r_loop: f64 = 0.020;
+    for (k, (x, y, z)) in pts.iter().enumerate() {
+        let p = &doc["points"][k];
+        assert_eq!(p["position_m"][0].as_f64().unwrap(), *x);
+        let line = &p["lines"][0];
+        assert_eq!(line["frequency_hz"].as_f64().unwrap(), 1e4);
+        let b: Vec<f64> = (0..3)
+            .map(|c| line["b_t_peak"][c][0].as_f64().unwrap())
+            .collect();
+        let rho = (x * x + y * y).sqrt();
+        let r2 = rho * rho + z * z;
+        let alpha2 = r_loop * r_loop + r2 - 2.0 * r_loop * rho;
+        let beta2 = r_loop * r_loop + r2 + 2.0 * r_loop * rho;
+        let m = 1.0 - alpha2 / beta2;
+        let (kk, ee) = k_e(m);
+        let c = MU0 * peak / std::f64::consts::PI;
+        let beta = beta2.sqrt();
+        let bz = c / (2.0 * alpha2 * beta) * ((r_loop * r_loop - r2) * ee + alpha2 * kk);
+        let brho = if rho > 0.0 {
+            c * z / (2.0 * alpha2 * beta * rho) * ((r_loop * r_loop + r2) * ee - alpha2 * kk)
+        } else {
+            0.0
+        };
+        let (bx, by) = if rho > 0.0 {
+            (brho * x / rho, brho * y / rho)
+        } else {
+            (0.0, 0.0)
+        };
+        let err = ((b[0] - bx).powi(2) + (b[1] - by).powi(2) + (b[2] - bz).powi(2)).sqrt()
+            / (bx * bx + by * by + bz * bz).sqrt();
+        assert!(err < 1e-6, "point {k}: relative error {err:e}");
+        let rms = line["b_t_rms"].as_f64().unwrap();
+        let expect_rms = (bx * bx + by * by + bz * bz).sqrt() / 2f64.sqrt();
+        assert!(((rms - expect_rms) / expect_rms).abs() < 1e-6);
+    }
+}
+
+#[test]
+fn probe_reads_points_with_units_and_csv_files() {
+    let path = scene("probe-units.toml", &coaxial_scene(10.0, "1 V"));
+    let csv = scene("pts.csv", "x_mm,y_mm,z_mm\n0,0,10\n10,0,5\n");
+    let doc = stdout_json(&run(&[
+        "probe",
+        path.to_str().unwrap(),
+        "--at",
+        "0,0,10 mm",
+        "--points",
+        csv.to_str().unwrap(),
+        "--json",
+    ]));
+    let pts = doc["points"].as_array().unwrap();
+    assert_eq!(pts.len(), 3);
+    assert_eq!(pts[0]["position_m"][2].as_f64().unwrap(), 0.01);
+    assert_eq!(pts[1]["lines"][0], pts[0]["lines"][0]);
+    assert_eq!(pts[2]["position_m"][0].as_f64().unwrap(), 0.01);
+}
+
+#[test]
+fn check_json_has_the_contract_keys_and_values() {
+    let path = scene("check.toml", &coaxial_scene(10.0, "1 V"));
+    let doc = stdout_json(&run(&["check", path.to_str().unwrap(), "--json"]));
+    let s = &doc["sources"][0];
+    assert_eq!(s["id"], "drive");
+    assert_eq!(s["kind"], "loop");
+    assert!(s["segments"].as_u64().unwrap() >= 32);
+    // Circumference 2πR and moment πR² per ampere of a circle.
+    let len = s["wire_length_m"].as_f64().unwrap();
+    assert!((len / (std::f64::consts::TAU * 0.02) - 1.0).abs() < 1e-6);
+    let m = s["dipole_moment_a_m2_per_a"].as_f64().unwrap();
+    assert!((m / (std::f64::consts::PI * 4e-4) - 1.0).abs() < 1e-12);
+    let v = &doc["victims"][0];
+    assert!(
+        (v["area_m2"].as_f64().unwrap() / (std::f64::consts::PI * 2.25e-4) - 1.0).abs() < 1e-12
+    );
+    // Rosa & Grover: L = μ0 R (ln(8R/a) − 2 + 1/4) for a round-wire circle.
+    let l = MU0 * 0.015 * ((8.0 * 0.015 / 1e-4f64).ln() - 1.75);
+    assert!((v["self_inductance_h"].as_f64().unwrap() / l - 1.0).abs() < 1e-12);
+    assert_eq!(doc["lines_hz"][0].as_f64().unwrap(), 1e4);
+    // λ/2π = c / (2π f), c exact by the SI.
+    let nf = 299_792_458.0 / (std::f64::consts::TAU * 1e4);
+    assert!((doc["near_field_limit_m"].as_f64().unwrap() / nf - 1.0).abs() < 1e-12);
+}
+
+const GOOD_SOURCE: &str = r#"[[source]]
+id = "s"
+kind = "loop"
+radius = "8 mm"
+current = { waveform = "sine", peak = "1 A", frequency = "50 Hz" }
+"#;
+
+/// Runs `check` on a bad scene; asserts exit 2, one line on stderr, nothing on stdout,
+/// and that the line starts with `FILE:LINE:COL:` and names `key`.
+fn assert_bad(name: &str, text: &str, line: usize, col: usize, key: &str, words: &str) {
+    let path = scene(name, text);
+    let out = run(&["check", path.to_str().unwrap()]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{name}: {err}");
+    assert!(out.stdout.is_empty(), "{name}: stdout not empty");
+    assert_eq!(err.trim_end().lines().count(), 1, "{name}: {err}");
+    let prefix = format!("{}:{line}:{col}: {key}", path.display());
+    assert!(
+        err.starts_with(&prefix),
+        "{name}: expected `{prefix}`, got `{err}`"
+    );
+    assert!(err.contains(words), "{name}: expected `{words}` in `{err}`");
+    assert!(!err.contains("panicked"), "{name}: {err}");
+}
+
+#[test]
+fn bad_input_gives_exit_two_and_one_located_line() {
+    let misspelt = GOOD_SOURCE.replace("radius", "radus");
+    assert_bad(
+        "misspelt.toml",
+        &misspelt,
+        4,
+        1,
+        "source[1].radus",
+        "did you mean `radius`",
+    );
+    let unknown = format!("{GOOD_SOURCE}colour = \"red\"\n");
+    assert_bad(
+        "unknown.toml",
+        &unknown,
+        6,
+        1,
+        "source[1].colour",
+        "unknown key",
+    );
+    let missing = GOOD_SOURCE.replace("radius = \"8 mm\"\n", "");
+    assert_bad(
+        "missing.toml",
+        &missing,
+        1,
+        1,
+        "source[1].radius",
+        "missing key",
+    );
+    let unit = GOOD_SOURCE.replace("\"8 mm\"", "\"8 kHz\"");
+    assert_bad("unit.toml", &unit, 4, 10, "source[1].radius", "frequency");
+    let nan = GOOD_SOURCE.replace("\"8 mm\"", "nan");
+    assert_bad(
+        "nan.toml",
+        &nan,
+        4,
+        10,
+        "source[1].radius",
+        "not a finite number",
+    );
+    let inf = GOOD_SOURCE.replace("\"8 mm\"", "inf");
+    assert_bad(
+        "inf.toml",
+        &inf,
+        4,
+        10,
+        "source[1].radius",
+        "not a finite number",
+    );
+    let zero_axis = format!("{GOOD_SOURCE}axis = [0, 0, 0]\n");
+    assert_bad(
+        "axis.toml",
+        &zero_axis,
+        6,
+        8,
+        "source[1].axis",
+        "zero vector",
+    );
+    let negative = GOOD_SOURCE.replace("\"8 mm\"", "\"-8 mm\"");
+    assert_bad(
+        "neg.toml",
+        &negative,
+        4,
+        10,
+        "source[1].radius",
+        "greater than zero",
+    );
+    let wrong_type = GOOD_SOURCE.replace("\"8 mm\"", "true");
+    assert_bad(
+        "type.toml",
+        &wrong_type,
+        4,
+        10,
+        "source[1].radius",
+        "found a boolean",
+    );
+    let dup = format!("{GOOD_SOURCE}[[victim]]\nid = \"s\"\nkind = \"loop\"\nradius = \"5 mm\"\n");
+    assert_bad("dup.toml", &dup, 7, 1, "victim[1].id", "already used");
+    let colinear = r#"[[source]]
+id = "p"
+kind = "polygon"
+vertices = [[0, 0, 0], ["1 mm", 0, 0], ["2 mm", 0, 0]]
+current = { peak = "1 A", frequency = "50 Hz" }
+"#;
+    assert_bad(
+        "colinear.toml",
+        colinear,
+        4,
+        12,
+        "source[1].vertices",
+        "colinear",
+    );
+    let zero_seg = colinear.replace("[\"2 mm\", 0, 0]", "[\"1 mm\", 0, 0]");
+    assert_bad(
+        "zeroseg.toml",
+        &zero_seg,
+        4,
+        40,
+        "source[1].vertices[3]",
+        "zero-length",
+    );
+    let not_toml = "[[source]\nid = 1\n";
+    assert_bad("nottoml.toml", not_toml, 1, 10, "", "not valid TOML");
+    let kind = GOOD_SOURCE.replace("\"loop\"", "\"lop\"");
+    assert_bad(
+        "kind.toml",
+        &kind,
+        3,
+        8,
+        "source[1].kind",
+        "did you mean \"loop\"",
+    );
+    let both = GOOD_SOURCE.replace("peak = \"1 A\"", "peak = \"1 A\", rms = \"1 A\"");
+    assert_bad(
+        "both.toml",
+        &both,
+        5,
+        46,
+        "source[1].current.rms",
+        "only one of",
+    );
+    let wire = GOOD_SOURCE.replace("\"8 mm\"", "\"0.1 mm\"");
+    assert_bad(
+        "wire.toml",
+        &wire,
+        4,
+        10,
+        "source[1].radius",
+        "wire diameter",
+    );
+    let freq = GOOD_SOURCE.replace("\"50 Hz\"", "\"0 Hz\"");
+    assert_bad(
+        "freq.toml",
+        &freq,
+        5,
+        58,
+        "source[1].current.frequency",
+        "greater than zero",
+    );
+    let bad_id = GOOD_SOURCE.replace("id = \"s\"", "id = \"my coil\"");
+    assert_bad(
+        "badid.toml",
+        &bad_id,
+        2,
+        6,
+        "source[1].id",
+        "not a valid id",
+    );
+    let later = format!("{GOOD_SOURCE}[[map]]\nid = \"m\"\n");
+    assert_bad("later.toml", &later, 6, 3, "map", "not supported yet");
+    let no_source = "[scene]\ntitle = \"empty\"\n";
+    assert_bad("nosource.toml", no_source, 1, 1, "", "no [[source]]");
+    let top_typo = GOOD_SOURCE.replace("[[source]]", "[[sources]]");
+    assert_bad(
+        "toptypo.toml",
+        &top_typo,
+        1,
+        3,
+        "sources",
+        "did you mean `source`",
+    );
+    let reference = format!("{GOOD_SOURCE}reference = [0, 0, 2]\n");
+    assert_bad(
+        "ref.toml",
+        &reference,
+        6,
+        13,
+        "source[1].reference",
+        "parallel",
+    );
+}
+
+#[test]
+fn unreadable_files_and_bad_arguments_exit_two() {
+    let out = run(&["check", "/nonexistent/scene.toml"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).starts_with("/nonexistent/scene.toml:1:1:"));
+
+    let path = scene("latin1.toml", "");
+    std::fs::write(&path, b"[scene]\ntitle = \"caf\xe9\"\n").unwrap();
+    let out = run(&["check", path.to_str().unwrap()]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains(":2:1: the scene file is not UTF-8"));
+
+    let good = scene("good.toml", &coaxial_scene(10.0, "1 V"));
+    for at in ["1,2", "a,b,c", "1,2,3 furlong", "1,2,nan"] {
+        let out = run(&["probe", good.to_str().unwrap(), "--at", at]);
+        assert_eq!(out.status.code(), Some(2), "--at {at}");
+        assert!(String::from_utf8_lossy(&out.stderr).contains("--at"));
+    }
+    // A point on the source wire is refused rather than answered with a huge number.
+    let out = run(&["probe", good.to_str().unwrap(), "--at", "20,0,0 mm"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("inside the wire"));
+
+    let csv = scene("bad.csv", "x,y,z\n0,0,0.01\n0,zero,0\n");
+    let out = run(&[
+        "probe",
+        good.to_str().unwrap(),
+        "--points",
+        csv.to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.starts_with(&format!("{}:3:3:", csv.display())), "{err}");
+}

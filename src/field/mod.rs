@@ -50,9 +50,10 @@ impl Conductors {
         self.wires.iter().map(|w| w.segment_count()).sum()
     }
 
-    /// Total filament length in metres, counting each turn once (weights ignored).
+    /// Total wire length in metres: each path's length times its number of coincident
+    /// turns (|weight|).
     pub fn wire_length(&self) -> f64 {
-        self.wires.iter().map(|w| w.length()).sum()
+        self.wires.iter().map(|w| w.length() * w.weight.abs()).sum()
     }
 
     /// Magnetic dipole moment per ampere, A·m² per A: ½∮ r × dl of every wire times its

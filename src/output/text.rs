@@ -124,14 +124,18 @@ pub fn couple(scene: &Scene, reports: &[VictimReport]) -> String {
                 "frequency", "current pk", "EMF pk", "EMF rms", "phase"
             );
             for l in &s.lines {
+                let phase = if l.emf.norm() > 0.0 {
+                    format!("{:>7.2}°", l.emf.arg().to_degrees())
+                } else {
+                    format!("{:>8}", "-")
+                };
                 let _ = writeln!(
                     out,
-                    "    {:>12}  {:>12}  {:>12}  {:>12}  {:>7.2}°",
+                    "    {:>12}  {:>12}  {:>12}  {:>12}  {phase}",
                     si(l.frequency, "Hz"),
                     si(l.current.norm(), "A"),
                     si(l.emf.norm(), "V"),
                     si(l.emf.norm() / std::f64::consts::SQRT_2, "V"),
-                    l.emf.arg().to_degrees()
                 );
             }
         }

@@ -34,6 +34,7 @@ pub mod quadrature;
 pub mod scene;
 pub mod spectrum;
 pub mod units;
+pub mod waveform;
 
 pub use error::{Error, InputError};
 pub use scene::Scene;

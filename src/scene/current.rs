@@ -23,8 +23,24 @@ const CURRENT_KEYS: &[&str] = &[
     "lines",
 ];
 
-/// Reads a `current` table into its spectral lines (peak phasors).
-pub fn parse_current(value: &Value<'_, '_>) -> Result<Vec<Line>, InputError> {
+/// What reading a current needs from its source.
+pub struct CurrentContext<'a> {
+    /// The source's id, for warnings.
+    pub source_id: &'a str,
+    /// The scene's relative tolerance (default harmonic cut).
+    pub tolerance: f64,
+    /// False when the source is scaled by `calibrate`: a missing amplitude then means a
+    /// 1 A peak waveform that calibration rescales.
+    pub amplitude_required: bool,
+}
+
+/// Reads a `current` table into its spectral lines (peak phasors), ascending frequency.
+pub fn parse_current(
+    value: &Value<'_, '_>,
+    ctx: &CurrentContext<'_>,
+    warnings: &mut Vec<String>,
+) -> Result<Vec<Line>, InputError> {
+    let _ = (ctx, &warnings);
     let table = value.table()?;
     if let Some(lines) = table.get("lines") {
         let out = parse_lines(&lines)?;

@@ -1,7 +1,8 @@
 //! `[[source]]` tables → placed conductors and their current.
 
 use super::reader::{Table, Value};
-use super::{Source, current::parse_current, parse_frame, parse_id, parse_kind};
+use super::current::{CurrentContext, parse_current};
+use super::{Source, parse_frame, parse_id, parse_kind};
 use crate::error::InputError;
 use crate::field::{Conductors, Vec3};
 use crate::geometry::{
@@ -121,7 +122,14 @@ pub(crate) fn parse(
         }
     }
     let lines = match t.get("current") {
-        Some(c) => parse_current(&c)?,
+        Some(c) => {
+            let cctx = CurrentContext {
+                source_id: &id,
+                tolerance: ctx.tolerance,
+                amplitude_required: true,
+            };
+            parse_current(&c, &cctx, warnings)?
+        }
         None if t.has("calibrate") => {
             return Err(t.error_at(
                 "calibrate",

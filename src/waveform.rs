@@ -1,0 +1,1 @@
+//! Periodic drive waveforms and their Fourier series (spectral lines).

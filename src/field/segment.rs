@@ -106,22 +106,30 @@ impl FieldSource for Polyline {
     }
 
     fn a_per_amp(&self, r: &Vec3) -> Vec3 {
+        self.a_and_gross_per_amp(r).0
+    }
+
+    fn a_and_gross_per_amp(&self, r: &Vec3) -> (Vec3, f64) {
         let radius = self.wire_radius;
         let mut sum = Vec3::zeros();
+        let mut gross = 0.0;
         let mut iter = self.vertices.iter();
         let Some(first) = iter.next() else {
-            return sum;
+            return (sum, 0.0);
         };
         let mut d_i = r - first;
         let mut r_i = d_i.norm();
         for v in iter {
             let d_f = r - v;
             let r_f = d_f.norm();
-            sum += segment_a(&d_i, r_i, &d_f, r_f, radius);
+            let (e, log) = segment_a(&d_i, r_i, &d_f, r_f, radius);
+            sum += e * log;
+            gross += log.abs();
             d_i = d_f;
             r_i = r_f;
         }
-        sum * (MU0_OVER_4PI * self.weight)
+        let k = MU0_OVER_4PI * self.weight;
+        (sum * k, gross * k.abs())
     }
 }
 
@@ -160,28 +168,34 @@ fn segment_b(d_i: &Vec3, r_i: f64, d_f: &Vec3, r_f: f64, a2: f64) -> Vec3 {
     let e = seg / l;
     let c = e.cross(d_i); // ê × (r − a); its norm is the distance ρ to the line
     let rho2 = c.norm_squared();
-    if rho2 >= a2 {
-        let s = r_i + r_f;
-        let u = gap(r_i, r_f, l, e.dot(d_i), rho2);
-        // (Ri+Rf)² − L² = u (Ri+Rf+L)
-        c * (2.0 * l * s / (r_i * r_f * u * (s + l)))
-    } else {
-        // Inside the conductor radius: the cos θ form with ρ² replaced by a², which
-        // falls linearly to zero on the axis like a round wire and equals the outer
-        // formula at ρ = a.
-        let cos_i = if r_i > 0.0 { e.dot(d_i) / r_i } else { 0.0 };
-        let cos_f = if r_f > 0.0 { e.dot(d_f) / r_f } else { 0.0 };
-        c * ((cos_i - cos_f) / a2)
+    let z_i = e.dot(d_i);
+    if rho2 < a2 {
+        // Near the line: inside the wire (distance d to the segment under a) use the
+        // cos θ form with ρ² replaced by D = a² − e², e the axial distance beyond the
+        // nearer end. D = a² along the wire, where the field falls linearly to zero on
+        // the axis like a round conductor's, and D = ρ² on the sphere d = a round each
+        // end, so the field is continuous and exact everywhere outside the wire.
+        let beyond = (-z_i).max(z_i - l).max(0.0);
+        if rho2 + beyond * beyond < a2 {
+            let cos_i = if r_i > 0.0 { z_i / r_i } else { 0.0 };
+            let cos_f = if r_f > 0.0 { e.dot(d_f) / r_f } else { 0.0 };
+            return c * ((cos_i - cos_f) / (a2 - beyond * beyond));
+        }
     }
+    let s = r_i + r_f;
+    let u = gap(r_i, r_f, l, z_i, rho2);
+    // (Ri+Rf)² − L² = u (Ri+Rf+L)
+    c * (2.0 * l * s / (r_i * r_f * u * (s + l)))
 }
 
-/// A of one segment without the μ0/4π factor, for wire radius `radius` (m).
+/// A of one segment without the μ0/4π factor, for wire radius `radius` (m), as the
+/// unit direction ê and the scalar log factor.
 #[inline]
-fn segment_a(d_i: &Vec3, r_i: f64, d_f: &Vec3, r_f: f64, radius: f64) -> Vec3 {
+fn segment_a(d_i: &Vec3, r_i: f64, d_f: &Vec3, r_f: f64, radius: f64) -> (Vec3, f64) {
     let seg = d_i - d_f;
     let l = seg.norm();
     if l == 0.0 {
-        return Vec3::zeros();
+        return (Vec3::zeros(), 0.0);
     }
     let e = seg / l;
     let s = r_i + r_f;
@@ -190,9 +204,9 @@ fn segment_a(d_i: &Vec3, r_i: f64, d_f: &Vec3, r_f: f64, radius: f64) -> Vec3 {
     // u ≤ 2·(distance to the segment), so u ≥ 2a means the point is outside the wire
     // and the closed form is safe.
     if u >= 2.0 * radius {
-        return e * ((s + l) / u).ln();
+        return (e, ((s + l) / u).ln());
     }
-    e * regularised_log(d_i, e, l, radius)
+    (e, regularised_log(d_i, e, l, radius))
 }
 
 /// ln((Ri+Rf+L)/(Ri+Rf−L)) for a point close to the segment: outside the wire the exact

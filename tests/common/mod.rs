@@ -67,8 +67,7 @@ pub fn loop_a(a: f64, p: &Vec3) -> Vec3 {
     }
     let s2 = (a + rho) * (a + rho) + p.z * p.z;
     let m = 4.0 * a * rho / s2;
-    let aphi =
-        MU0 * a / (PI * s2.sqrt()) * ((2.0 - m) * ellip_k(m) - 2.0 * ellip_e(m)) / m;
+    let aphi = MU0 * a / (PI * s2.sqrt()) * ((2.0 - m) * ellip_k(m) - 2.0 * ellip_e(m)) / m;
     Vec3::new(-p.y / rho, p.x / rho, 0.0) * aphi
 }
 

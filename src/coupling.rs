@@ -25,7 +25,11 @@ pub fn flux_per_amp<S: FieldSource + ?Sized>(
         converged: true,
     };
     for edge in edges {
-        let f = |t: f64| source.a_per_amp(&edge.point(t)).dot(&edge.tangent(t));
+        let f = |t: f64| {
+            let tangent = edge.tangent(t);
+            let (a, gross) = source.a_and_gross_per_amp(&edge.point(t));
+            (a.dot(&tangent), gross * tangent.norm())
+        };
         // A tenth of the tolerance per edge: the halving test is conservative for smooth
         // integrands, and edges add.
         let part = integrate_unit(&f, edge.initial_panels(), tolerance * 0.1);

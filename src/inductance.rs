@@ -51,6 +51,9 @@ fn side_mutual(a: &Vec3, b: &Vec3, c: &Vec3, d: &Vec3, radius: f64, tolerance: f
         return 0.0; // perpendicular sides: A of one is normal to the other
     }
     let other = Polyline::new(vec![*c, *d], radius);
-    let f = |t: f64| other.a_per_amp(&(a + ab * t)).dot(&ab);
+    let f = |t: f64| {
+        let (pot, gross) = other.a_and_gross_per_amp(&(a + ab * t));
+        (pot.dot(&ab), gross * ab.norm())
+    };
     integrate_unit(&f, 4, tolerance * 0.1).value
 }

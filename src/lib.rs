@@ -29,6 +29,7 @@ pub mod field;
 pub mod geometry;
 pub mod inductance;
 pub mod output;
+pub mod points_csv;
 pub mod probe;
 pub mod quadrature;
 pub mod scene;

@@ -6,8 +6,16 @@ use std::sync::OnceLock;
 /// Points per Gauss–Legendre panel; exact for polynomials of degree 2·ORDER − 1.
 pub const ORDER: usize = 12;
 
-/// Deepest halving of one first-pass panel (2^-40 of its length).
-const MAX_DEPTH: u32 = 40;
+/// Deepest halving of one first-pass panel (2^-30 of its length).
+const MAX_DEPTH: u32 = 30;
+
+/// Most panels one first-pass panel may be split into: bounds the work when rounding
+/// noise, not the integrand, keeps two estimates apart.
+const MAX_PANELS: usize = 1 << 14;
+
+/// Rounding-noise floor: two estimates closer than this many units in the last place
+/// of the integrand's gross magnitude count as equal.
+const NOISE_ULPS: f64 = 1024.0;
 
 /// Nodes and weights of the `n`-point Gauss–Legendre rule on [−1, 1], by Newton's
 /// iteration on the Legendre recurrence (Golub & Welsch give the same nodes as
@@ -58,15 +66,19 @@ fn rule() -> &'static (Vec<f64>, Vec<f64>) {
     RULE.get_or_init(|| gauss_legendre(ORDER))
 }
 
-/// ∫ f over [t0, t1] with one Gauss–Legendre panel.
-pub fn panel<F: Fn(f64) -> f64>(f: &F, t0: f64, t1: f64) -> f64 {
+/// ∫ f over [t0, t1] with one Gauss–Legendre panel. `f` returns the integrand and its
+/// gross magnitude (the sum of the absolute values of whatever it adds up), and so does
+/// this: (∫ f, ∫ gross).
+pub fn panel<F: Fn(f64) -> (f64, f64)>(f: &F, t0: f64, t1: f64) -> (f64, f64) {
     let (x, w) = rule();
     let (mid, half) = ((t0 + t1) / 2.0, (t1 - t0) / 2.0);
-    x.iter()
-        .zip(w)
-        .map(|(xi, wi)| wi * f(mid + half * xi))
-        .sum::<f64>()
-        * half
+    let (mut v, mut g) = (0.0, 0.0);
+    for (xi, wi) in x.iter().zip(w) {
+        let (fv, fg) = f(mid + half * xi);
+        v += wi * fv;
+        g += wi * fg;
+    }
+    (v * half, g * half.abs())
 }
 
 /// Result of an adaptive integral.
@@ -76,25 +88,37 @@ pub struct Integral {
     pub value: f64,
     /// Sum of |panel value| over the final panels, a scale for relative error.
     pub magnitude: f64,
-    /// Whether every panel met its share of the tolerance before the depth limit.
+    /// Whether every panel met its share of the tolerance within the work limits.
     pub converged: bool,
 }
 
 /// ∫₀¹ f(t) dt split into `panels` equal first-pass panels, each halved until the two
-/// halves agree with the whole to `rel_tol` of the first-pass magnitude. Panels run in
-/// parallel and are summed in order, so the result is the same for any thread count.
-pub fn integrate_unit<F: Fn(f64) -> f64 + Sync>(f: &F, panels: usize, rel_tol: f64) -> Integral {
+/// halves agree with the whole to `rel_tol` of the first-pass magnitude, or to the
+/// rounding noise of the integrand's gross magnitude. `f` returns (value, gross); see
+/// [`panel`]. Panels run in parallel and are summed in order, so the result is the same
+/// for any thread count.
+pub fn integrate_unit<F: Fn(f64) -> (f64, f64) + Sync>(
+    f: &F,
+    panels: usize,
+    rel_tol: f64,
+) -> Integral {
     let n = panels.max(1);
     let bounds: Vec<(f64, f64)> = (0..n)
         .map(|k| (k as f64 / n as f64, (k + 1) as f64 / n as f64))
         .collect();
-    let first: Vec<f64> = bounds.par_iter().map(|&(a, b)| panel(f, a, b)).collect();
-    let scale: f64 = first.iter().map(|v| v.abs()).sum();
-    let abs_tol = rel_tol * scale.max(f64::MIN_POSITIVE);
+    let first: Vec<(f64, f64)> = bounds.par_iter().map(|&(a, b)| panel(f, a, b)).collect();
+    let scale: f64 = first.iter().map(|v| v.0.abs()).sum();
+    let gross: f64 = first.iter().map(|v| v.1).sum();
+    let abs_tol = (rel_tol * scale)
+        .max(NOISE_ULPS * f64::EPSILON * gross)
+        .max(f64::MIN_POSITIVE);
     let parts: Vec<Integral> = bounds
         .par_iter()
         .zip(first.par_iter())
-        .map(|(&(a, b), &whole)| refine(f, a, b, whole, abs_tol * (b - a), MAX_DEPTH))
+        .map(|(&(a, b), &(whole, _))| {
+            let mut budget = MAX_PANELS;
+            refine(f, (a, b), whole, abs_tol * (b - a), MAX_DEPTH, &mut budget)
+        })
         .collect();
     let mut out = Integral {
         value: 0.0,
@@ -109,27 +133,29 @@ pub fn integrate_unit<F: Fn(f64) -> f64 + Sync>(f: &F, panels: usize, rel_tol: f
     out
 }
 
-fn refine<F: Fn(f64) -> f64>(f: &F, a: f64, b: f64, whole: f64, tol: f64, depth: u32) -> Integral {
+fn refine<F: Fn(f64) -> (f64, f64)>(
+    f: &F,
+    (a, b): (f64, f64),
+    whole: f64,
+    tol: f64,
+    depth: u32,
+    budget: &mut usize,
+) -> Integral {
     let m = 0.5 * (a + b);
-    let left = panel(f, a, m);
-    let right = panel(f, m, b);
+    let left = panel(f, a, m).0;
+    let right = panel(f, m, b).0;
+    *budget = budget.saturating_sub(2);
     let sum = left + right;
-    if (sum - whole).abs() <= tol {
+    let done = (sum - whole).abs() <= tol;
+    if done || depth == 0 || *budget == 0 {
         return Integral {
             value: sum,
             magnitude: left.abs() + right.abs(),
-            converged: true,
+            converged: done,
         };
     }
-    if depth == 0 {
-        return Integral {
-            value: sum,
-            magnitude: left.abs() + right.abs(),
-            converged: false,
-        };
-    }
-    let l = refine(f, a, m, left, tol / 2.0, depth - 1);
-    let r = refine(f, m, b, right, tol / 2.0, depth - 1);
+    let l = refine(f, (a, m), left, tol / 2.0, depth - 1, budget);
+    let r = refine(f, (m, b), right, tol / 2.0, depth - 1, budget);
     Integral {
         value: l.value + r.value,
         magnitude: l.magnitude + r.magnitude,
@@ -163,7 +189,10 @@ mod tests {
     fn adaptive_handles_a_near_log_singularity() {
         // ∫₀¹ ln(|t − ½| + ε) dt in closed form.
         let eps: f64 = 1e-9;
-        let f = |t: f64| ((t - 0.5).abs() + eps).ln();
+        let f = |t: f64| {
+            let v = ((t - 0.5).abs() + eps).ln();
+            (v, v.abs())
+        };
         let g = |u: f64| (u + eps) * (u + eps).ln() - u;
         let exact = 2.0 * (g(0.5) - g(0.0));
         let got = integrate_unit(&f, 4, 1e-10);

@@ -291,6 +291,9 @@ pub fn format_si(value: f64, unit: &str, digits: usize) -> String {
         (1e-15, "f"),
     ];
     let mag = value.abs();
+    if mag < 0.999_999_5e-15 {
+        return format!("{value:.prec$e} {unit}", prec = digits.saturating_sub(1));
+    }
     let (factor, prefix) = PREFIXES
         .iter()
         .copied()

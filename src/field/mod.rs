@@ -32,6 +32,14 @@ pub trait FieldSource: Send + Sync {
     fn b_per_amp(&self, r: &Vec3) -> Vec3;
     /// Vector potential A at `r` (m), in T·m per ampere (Coulomb gauge, zero at infinity).
     fn a_per_amp(&self, r: &Vec3) -> Vec3;
+
+    /// A at `r` (T·m/A) and its gross magnitude: the sum of the magnitudes of the parts
+    /// that add up to it (T·m/A). Their ratio tells how much rounding noise the sum
+    /// carries where the parts cancel (a twisted pair, a null).
+    fn a_and_gross_per_amp(&self, r: &Vec3) -> (Vec3, f64) {
+        let a = self.a_per_amp(r);
+        (a, a.norm())
+    }
 }
 
 /// The conductors of one source: filament polylines and point dipoles, all carrying the
@@ -86,14 +94,23 @@ impl FieldSource for Conductors {
     }
 
     fn a_per_amp(&self, r: &Vec3) -> Vec3 {
+        self.a_and_gross_per_amp(r).0
+    }
+
+    fn a_and_gross_per_amp(&self, r: &Vec3) -> (Vec3, f64) {
         let mut a = Vec3::zeros();
+        let mut gross = 0.0;
         for w in &self.wires {
-            a += w.a_per_amp(r);
+            let (v, g) = w.a_and_gross_per_amp(r);
+            a += v;
+            gross += g;
         }
         for d in &self.dipoles {
-            a += d.a_per_amp(r);
+            let v = d.a_per_amp(r);
+            a += v;
+            gross += v.norm();
         }
-        a
+        (a, gross)
     }
 }
 

@@ -8,10 +8,14 @@
 mod edge;
 mod frame;
 mod shapes;
+mod windings;
 
 pub use edge::{Edge, vector_area};
 pub use frame::Frame;
 pub use shapes::{
     circle_segments, circle_source, dipole_source, polygon_source, polyline_source,
     rectangle_corners,
+};
+pub use windings::{
+    chord_factor, helix, pair, round_spiral, saddle, square_spiral, square_spiral_corners, toroid,
 };

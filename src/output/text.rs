@@ -51,6 +51,16 @@ pub fn check(scene: &Scene, lines_hz: &[f64]) -> String {
             safe_unit(m.y, m.norm()),
             safe_unit(m.z, m.norm())
         );
+        if let Some((at, field)) = s.calibration {
+            let i_rms = (s.lines.iter().map(|l| l.current.norm_sqr()).sum::<f64>() / 2.0).sqrt();
+            let _ = writeln!(
+                out,
+                "  current set by calibrate: {} rms in all lines gives |B| = {} rms at {}",
+                si(i_rms, "A"),
+                si(field, "T"),
+                fmt_point(&at)
+            );
+        }
         for l in &s.lines {
             let _ = writeln!(
                 out,

@@ -2,13 +2,14 @@
 //!
 //! Loading runs in two stages. `toml` parses the text into a tree that keeps every
 //! value's byte span; [`reader`] walks that tree, checking types, units, ranges and
-//! unknown keys, and [`source`] / [`victim`] build the geometry the solver trusts. Any
+//! unknown keys, and the `source` and `victim` modules build the geometry the solver trusts. Any
 //! problem stops the load with one located [`InputError`].
 
 mod current;
 pub mod reader;
 mod source;
 mod victim;
+mod windings;
 
 use crate::error::InputError;
 use crate::field::{Conductors, Vec3};
@@ -53,6 +54,8 @@ pub struct Source {
     pub conductors: Conductors,
     /// Current spectrum, peak phasors, ascending frequency.
     pub lines: Vec<Line>,
+    /// With `calibrate`: the point (m) and the rms |B| (T) the current was scaled to.
+    pub calibration: Option<(Vec3, f64)>,
 }
 
 /// A victim loop: a closed path whose flux linkage gives the induced EMF.
@@ -115,7 +118,11 @@ impl Scene {
             doc.error(&span, "", format!("not valid TOML: {msg}"))
         })?;
         let root = Table::root(&doc, &root);
-        build(&root)
+        let base_dir = Path::new(name)
+            .parent()
+            .map(Path::to_path_buf)
+            .unwrap_or_default();
+        build(&root, base_dir)
     }
 
     /// λ/2π at the highest line of any source, m.
@@ -152,7 +159,7 @@ impl Scene {
 const TOP_KEYS: &[&str] = &["scene", "solver", "source", "victim"];
 const LATER_KEYS: &[&str] = &["shield", "enclosure", "sweep", "map"];
 
-fn build(root: &Table<'_, '_>) -> Result<Scene, InputError> {
+fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, InputError> {
     for later in LATER_KEYS {
         if root.has(later) {
             return Err(root.error_at(
@@ -177,6 +184,7 @@ fn build(root: &Table<'_, '_>) -> Result<Scene, InputError> {
     let ctx = source::Context {
         tolerance,
         wire_radius,
+        base_dir,
     };
     let mut warnings = Vec::new();
     let mut ids: Vec<String> = Vec::new();

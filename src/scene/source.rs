@@ -1,10 +1,11 @@
 //! `[[source]]` tables → placed conductors and their current.
 
-use super::reader::{Table, Value};
 use super::current::{CurrentContext, parse_current};
+use super::reader::{Table, Value};
+use super::windings::parse_winding;
 use super::{Source, parse_frame, parse_id, parse_kind};
 use crate::error::InputError;
-use crate::field::{Conductors, Vec3};
+use crate::field::{Conductors, FieldSource, Vec3};
 use crate::geometry::{
     circle_source, dipole_source, polygon_source, polyline_source, rectangle_corners,
 };
@@ -16,10 +17,23 @@ pub(crate) struct Context {
     pub tolerance: f64,
     /// Default wire radius, m.
     pub wire_radius: f64,
+    /// Folder that relative paths in the scene (a `file` source) start from.
+    pub base_dir: std::path::PathBuf,
 }
 
-const KINDS: &[&str] = &["loop", "rectangle", "polygon", "polyline", "dipole"];
-const LATER: &[&str] = &["helix", "toroid", "spiral", "saddle", "pair", "file"];
+const KINDS: &[&str] = &[
+    "loop",
+    "rectangle",
+    "polygon",
+    "polyline",
+    "dipole",
+    "helix",
+    "toroid",
+    "spiral",
+    "saddle",
+    "pair",
+    "file",
+];
 
 /// Geometry keys of every source kind (for "not a key of this kind" messages).
 const GEOMETRY_KEYS: &[&str] = &[
@@ -49,7 +63,7 @@ pub(crate) fn parse(
     warnings: &mut Vec<String>,
 ) -> Result<Source, InputError> {
     let id = parse_id(t)?;
-    let kind = parse_kind(t, KINDS, LATER)?;
+    let kind = parse_kind(t, KINDS, &[])?;
     let frame = parse_frame(t)?;
     let wire_radius = match t.get("wire_radius") {
         Some(v) => v.positive(Dimension::Length)?,
@@ -111,7 +125,7 @@ pub(crate) fn parse(
             }
             dipole_source(&frame, area, wire_radius)
         }
-        _ => unreachable!("kind checked by parse_kind"),
+        other => parse_winding(other, t, &frame, ctx, wire_radius, warnings)?,
     };
     if matches!(kind, "loop" | "rectangle" | "polygon")
         && let Some(n) = t.get("turns")
@@ -121,20 +135,15 @@ pub(crate) fn parse(
             w.weight = turns;
         }
     }
-    let lines = match t.get("current") {
+    let calibrate = t.get("calibrate");
+    let mut lines = match t.get("current") {
         Some(c) => {
             let cctx = CurrentContext {
                 source_id: &id,
                 tolerance: ctx.tolerance,
-                amplitude_required: true,
+                amplitude_required: calibrate.is_none(),
             };
             parse_current(&c, &cctx, warnings)?
-        }
-        None if t.has("calibrate") => {
-            return Err(t.error_at(
-                "calibrate",
-                "`calibrate` is not supported yet in this version; give `current`",
-            ));
         }
         None => {
             return Err(t.error(
@@ -143,6 +152,10 @@ pub(crate) fn parse(
             ));
         }
     };
+    let calibration = match calibrate {
+        Some(c) => Some(calibrate_lines(&c, &conductors, &mut lines)?),
+        None => None,
+    };
     t.finish(GEOMETRY_KEYS, &format!("a source of kind \"{kind}\""))?;
     Ok(Source {
         id,
@@ -150,7 +163,41 @@ pub(crate) fn parse(
         frame,
         conductors,
         lines,
+        calibration,
     })
+}
+
+/// `calibrate = { at, field }`: scales `lines` so the rms of |B| at `at` equals `field`
+/// (rms over all lines: √(Σ|B_k|²/2)). Returns the point (m) and field (T).
+fn calibrate_lines(
+    v: &Value<'_, '_>,
+    conductors: &Conductors,
+    lines: &mut [crate::spectrum::Line],
+) -> Result<(Vec3, f64), InputError> {
+    let t = v.table()?;
+    let at_v = t.require("at", "the point [x, y, z] where the field is known")?;
+    let at = at_v.vector(Dimension::Length)?;
+    let fv = t.require("field", "the rms of |B| there, e.g. \"12 uT\"")?;
+    let field = fv.positive(Dimension::Field)?;
+    t.finish(&[], "`calibrate` (at, field)")?;
+    if conductors.distance_to(&at) < conductors.wires.first().map_or(0.0, |w| w.wire_radius)
+        || conductors
+            .dipoles
+            .iter()
+            .any(|d| (at - d.position).norm() < d.radius)
+    {
+        return Err(at_v.error("the calibration point lies on the source's conductor"));
+    }
+    let b = conductors.b_per_amp(&at).norm();
+    let i_rms = (lines.iter().map(|l| l.current.norm_sqr()).sum::<f64>() / 2.0).sqrt();
+    if !(b > 0.0 && i_rms > 0.0) {
+        return Err(at_v.error("the source makes no field at this point: choose another"));
+    }
+    let k = field / (b * i_rms);
+    for l in lines.iter_mut() {
+        l.current *= k;
+    }
+    Ok((at, field))
 }
 
 /// The wire must be thinner than the shape it is bent into.

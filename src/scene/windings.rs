@@ -1,0 +1,276 @@
+//! `[[source]]` winding kinds: helix, toroid, spiral, saddle, pair, file.
+
+use super::reader::{Table, Value};
+use super::source::{Context, check_wire};
+use crate::error::InputError;
+use crate::field::{Conductors, Polyline, Vec3};
+use crate::geometry::{Frame, helix, pair, round_spiral, saddle, square_spiral, toroid};
+use crate::points_csv::read_point_rows;
+use crate::units::Dimension;
+use std::f64::consts::PI;
+
+/// Reads the geometry of a winding `kind` into conductors.
+pub(crate) fn parse_winding(
+    kind: &str,
+    t: &Table<'_, '_>,
+    frame: &Frame,
+    ctx: &Context,
+    wire_radius: f64,
+    warnings: &mut Vec<String>,
+) -> Result<Conductors, InputError> {
+    let wires = match kind {
+        "helix" => vec![parse_helix(t, frame, ctx, wire_radius, warnings)?],
+        "toroid" => vec![parse_toroid(t, frame, ctx, wire_radius)?],
+        "spiral" => vec![parse_spiral(t, frame, ctx, wire_radius)?],
+        "saddle" => parse_saddle(t, frame, ctx, wire_radius)?,
+        "pair" => vec![parse_pair(t, frame, ctx, wire_radius)?],
+        "file" => vec![parse_file(t, frame, ctx, wire_radius, warnings)?],
+        _ => unreachable!("kind checked by parse_kind"),
+    };
+    Ok(Conductors {
+        wires,
+        dipoles: vec![],
+    })
+}
+
+/// A positive length and its value (for later messages).
+fn positive<'a, 'i>(
+    t: &Table<'a, 'i>,
+    key: &str,
+    what: &str,
+) -> Result<(f64, Value<'a, 'i>), InputError> {
+    let v = t.require(key, what)?;
+    Ok((v.positive(Dimension::Length)?, v))
+}
+
+/// A positive, possibly fractional number of turns.
+fn turns_real(t: &Table<'_, '_>) -> Result<f64, InputError> {
+    let v = t.require("turns", "the number of turns, e.g. 40")?;
+    let n = v.number()?;
+    if n > 0.0 && n <= 1e6 {
+        Ok(n)
+    } else {
+        Err(v.error(format!("must be between 0 and 1e6 turns, got {}", v.raw())))
+    }
+}
+
+/// A whole number of turns, at least one.
+fn turns_whole(t: &Table<'_, '_>) -> Result<u64, InputError> {
+    let v = t.require("turns", "the number of turns, a whole number")?;
+    let n = v.count(1)?;
+    if n > 1_000_000 {
+        return Err(v.error(format!("{n} turns is more than this tool models (1e6)")));
+    }
+    Ok(n)
+}
+
+fn check_pitch(v: &Value<'_, '_>, pitch: f64, wire_radius: f64) -> Result<(), InputError> {
+    if pitch < 2.0 * wire_radius * (1.0 - 1e-9) {
+        return Err(v.error(format!(
+            "the turns would overlap: the pitch {pitch:e} m is less than the wire diameter \
+             {:e} m; use fewer turns or a smaller `wire_radius`",
+            2.0 * wire_radius
+        )));
+    }
+    Ok(())
+}
+
+fn parse_helix(
+    t: &Table<'_, '_>,
+    frame: &Frame,
+    ctx: &Context,
+    wire_radius: f64,
+    warnings: &mut Vec<String>,
+) -> Result<Polyline, InputError> {
+    let (radius, rv) = positive(t, "radius", "the winding radius")?;
+    let (len, lv) = positive(t, "length", "the winding length along local z")?;
+    let turns = turns_real(t)?;
+    check_wire(&rv, radius, wire_radius)?;
+    check_pitch(&lv, len / turns, wire_radius)?;
+    let axial = match t.get("leads") {
+        None => true,
+        Some(v) => match v.string()? {
+            "axial" => true,
+            "none" => false,
+            other => {
+                return Err(v.error(format!(
+                    "unknown leads \"{other}\"; expected \"axial\" or \"none\""
+                )));
+            }
+        },
+    };
+    if !axial {
+        warnings.push(
+            "a helix with leads = \"none\" is an open path: its return is not modelled".into(),
+        );
+    }
+    Ok(helix(
+        frame,
+        radius,
+        len,
+        turns,
+        axial,
+        ctx.tolerance,
+        wire_radius,
+    ))
+}
+
+fn parse_toroid(
+    t: &Table<'_, '_>,
+    frame: &Frame,
+    ctx: &Context,
+    wire_radius: f64,
+) -> Result<Polyline, InputError> {
+    let (major, _) = positive(t, "major_radius", "radius of the core's centre line")?;
+    let (minor, mv) = positive(t, "minor_radius", "radius of the winding's cross-section")?;
+    let turns = turns_whole(t)?;
+    if minor >= major {
+        return Err(mv.error(format!(
+            "must be smaller than major_radius ({major:e} m), got {minor:e} m"
+        )));
+    }
+    check_wire(&mv, minor, wire_radius)?;
+    Ok(toroid(
+        frame,
+        major,
+        minor,
+        turns,
+        ctx.tolerance,
+        wire_radius,
+    ))
+}
+
+fn parse_spiral(
+    t: &Table<'_, '_>,
+    frame: &Frame,
+    ctx: &Context,
+    wire_radius: f64,
+) -> Result<Polyline, InputError> {
+    let (inner, _) = positive(t, "inner_radius", "radius where the spiral starts")?;
+    let (outer, ov) = positive(t, "outer_radius", "radius where the spiral ends")?;
+    let turns = turns_real(t)?;
+    if inner >= outer {
+        return Err(ov.error(format!(
+            "must be larger than inner_radius ({inner:e} m), got {outer:e} m"
+        )));
+    }
+    check_pitch(&ov, (outer - inner) / turns, wire_radius)?;
+    let round = match t.get("shape") {
+        None => true,
+        Some(v) => match v.string()? {
+            "round" => true,
+            "square" => false,
+            other => {
+                return Err(v.error(format!(
+                    "unknown shape \"{other}\"; expected \"round\" or \"square\""
+                )));
+            }
+        },
+    };
+    Ok(if round {
+        round_spiral(frame, inner, outer, turns, ctx.tolerance, wire_radius)
+    } else {
+        square_spiral(frame, inner, outer, turns, wire_radius)
+    })
+}
+
+fn parse_saddle(
+    t: &Table<'_, '_>,
+    frame: &Frame,
+    ctx: &Context,
+    wire_radius: f64,
+) -> Result<Vec<Polyline>, InputError> {
+    let (radius, rv) = positive(t, "radius", "the cylinder radius")?;
+    let (len, lv) = positive(t, "length", "the coil length along local z")?;
+    let ov = t.require("opening", "the angle each coil spans, e.g. \"120 deg\"")?;
+    let opening = ov.quantity(Dimension::Angle)?;
+    if !(opening > 0.0 && opening < PI) {
+        return Err(ov.error(format!(
+            "must be between 0 and 180 deg so the two coils do not overlap, got {}",
+            ov.raw()
+        )));
+    }
+    let turns = turns_whole(t)? as f64;
+    check_wire(&rv, radius, wire_radius)?;
+    check_wire(&lv, len, wire_radius)?;
+    let mut coils = saddle(frame, radius, len, opening, ctx.tolerance, wire_radius);
+    for c in &mut coils {
+        c.weight = turns;
+    }
+    Ok(coils.to_vec())
+}
+
+fn parse_pair(
+    t: &Table<'_, '_>,
+    frame: &Frame,
+    ctx: &Context,
+    wire_radius: f64,
+) -> Result<Polyline, InputError> {
+    let (len, _) = positive(t, "length", "the cable length along local z")?;
+    let (sep, sv) = positive(
+        t,
+        "separation",
+        "centre-to-centre distance of the conductors",
+    )?;
+    check_wire(&sv, sep, wire_radius)?;
+    if sep >= len {
+        return Err(sv.error("must be smaller than the cable length"));
+    }
+    let pitch = match t.get("twist_pitch") {
+        Some(v) => Some(v.positive(Dimension::Length)?),
+        None => None,
+    };
+    Ok(pair(frame, len, sep, pitch, ctx.tolerance, wire_radius))
+}
+
+fn parse_file(
+    t: &Table<'_, '_>,
+    frame: &Frame,
+    ctx: &Context,
+    wire_radius: f64,
+    warnings: &mut Vec<String>,
+) -> Result<Polyline, InputError> {
+    let pv = t.require("path", "a CSV file of x,y,z points, relative to the scene")?;
+    let rel = pv.string()?;
+    let path = ctx.base_dir.join(rel);
+    if !path.is_file() {
+        return Err(pv.error(format!("cannot read \"{}\": no such file", path.display())));
+    }
+    let rows = read_point_rows(&path)?;
+    let name = path.display().to_string();
+    if rows.len() < 2 {
+        return Err(row_error(
+            &name,
+            rows.first().map_or(1, |r| r.1),
+            "a path needs at least 2 points",
+        ));
+    }
+    for w in rows.windows(2) {
+        if w[0].0 == w[1].0 {
+            return Err(row_error(
+                &name,
+                w[1].1,
+                "repeats the previous point: a zero-length segment",
+            ));
+        }
+    }
+    let pts: Vec<Vec3> = rows.iter().map(|r| frame.point(&r.0)).collect();
+    let closed = pts.len() > 3 && rows.first().map(|r| r.0) == rows.last().map(|r| r.0);
+    if !closed {
+        warnings.push(format!(
+            "the path in \"{rel}\" is open (its first and last points differ): its return path \
+             is not modelled"
+        ));
+    }
+    Ok(Polyline::new(pts, wire_radius))
+}
+
+fn row_error(file: &str, line: usize, reason: &str) -> InputError {
+    InputError {
+        file: file.to_string(),
+        line,
+        col: 1,
+        key: "row".into(),
+        reason: reason.into(),
+    }
+}

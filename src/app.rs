@@ -5,7 +5,7 @@ use crate::Scene;
 use crate::coupling::{VictimReport, couple_victim};
 use crate::error::Error;
 use crate::field::Vec3;
-use crate::output::{json, text};
+use crate::output::{csv, files, json, plot, text};
 use crate::points_csv::read_points_csv;
 use crate::probe::probe;
 use crate::spectrum::same_frequency;
@@ -39,8 +39,14 @@ pub fn check(path: &Path, as_json: bool) -> Result<Outcome, Error> {
     })
 }
 
-/// `couple SCENE`: M, EMF per line, totals and margins for every victim.
-pub fn couple(path: &Path, as_json: bool, strict: bool) -> Result<Outcome, Error> {
+/// `couple SCENE`: M, EMF per line, totals and margins for every victim; with `plot_dir`
+/// also each victim's EMF spectrum as `<dir>/<victim>-spectrum.svg`.
+pub fn couple(
+    path: &Path,
+    as_json: bool,
+    strict: bool,
+    plot_dir: Option<&Path>,
+) -> Result<Outcome, Error> {
     let scene = Scene::load(path)?;
     let reports: Vec<VictimReport> = scene
         .victims
@@ -58,6 +64,24 @@ pub fn couple(path: &Path, as_json: bool, strict: bool) -> Result<Outcome, Error
         }
     }
     let over = reports.iter().any(|r| r.pass() == Some(false));
+    if let Some(dir) = plot_dir {
+        let mut files = Vec::new();
+        for r in &reports {
+            let lines: Vec<(f64, f64)> = r
+                .by_frequency
+                .iter()
+                .map(|(f, e)| (*f, e.norm() / std::f64::consts::SQRT_2))
+                .collect();
+            match plot::spectrum_svg(&r.id, &lines, r.limit) {
+                Ok(svg) => files.push((dir.join(format!("{}-spectrum.svg", r.id)), svg)),
+                Err(why) => warnings.push(why),
+            }
+        }
+        files::ensure_dir(dir)?;
+        for (p, svg) in &files {
+            files::write_atomic(p, svg.as_bytes())?;
+        }
+    }
     let stdout = if as_json {
         json::couple(&reports)
     } else {
@@ -181,4 +205,80 @@ pub fn parse_point_arg(arg: &str) -> Result<Vec3, Error> {
         v[k] = value;
     }
     Ok(v)
+}
+
+/// `sweep SCENE [--only ID] [--out DIR]`: run the scene's sweeps, write `<id>.csv` and
+/// `<id>.svg` into `out_dir`, report the safe distance. `progress` is called once per
+/// finished step.
+pub fn sweep(
+    path: &Path,
+    only: Option<&str>,
+    out_dir: &Path,
+    as_json: bool,
+    progress: &(dyn Fn(usize, usize) + Sync),
+) -> Result<Outcome, Error> {
+    let scene = Scene::load(path)?;
+    let chosen: Vec<&crate::scene::sweep::SweepSpec> = match only {
+        Some(id) => {
+            let s: Vec<_> = scene.sweeps.iter().filter(|s| s.id == id).collect();
+            if s.is_empty() {
+                let known: Vec<&str> = scene.sweeps.iter().map(|s| s.id.as_str()).collect();
+                return Err(Error::Usage(format!(
+                    "--only {id}: the scene has no sweep with that id (sweeps: {})",
+                    if known.is_empty() {
+                        "none".into()
+                    } else {
+                        known.join(", ")
+                    }
+                )));
+            }
+            s
+        }
+        None => scene.sweeps.iter().collect(),
+    };
+    if chosen.is_empty() {
+        return Err(Error::Usage(format!(
+            "{}: the scene has no [[sweep]]; add one (see README, Sweeps)",
+            path.display()
+        )));
+    }
+    let total_steps: usize = chosen.iter().map(|s| s.steps).sum();
+    let done = std::sync::atomic::AtomicUsize::new(0);
+    let tick = || {
+        let n = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
+        progress(n, total_steps);
+    };
+    let results: Vec<crate::sweep::SweepResult> = chosen
+        .iter()
+        .map(|s| crate::sweep::run(&scene, s, &tick))
+        .collect();
+    let mut outputs = Vec::new();
+    let mut warnings = scene.warnings.clone();
+    for r in &results {
+        let victim = &scene.victims[r.spec.victim].id;
+        outputs.push((
+            out_dir.join(format!("{}.csv", r.spec.id)),
+            csv::sweep_csv(r),
+        ));
+        match plot::sweep_svg(r, victim) {
+            Ok(svg) => outputs.push((out_dir.join(format!("{}.svg", r.spec.id)), svg)),
+            Err(why) => warnings.push(format!("sweep \"{}\": {why}", r.spec.id)),
+        }
+    }
+    files::ensure_dir(out_dir)?;
+    let mut written = Vec::new();
+    for (p, text) in &outputs {
+        files::write_atomic(p, text.as_bytes())?;
+        written.push(p.display().to_string());
+    }
+    let stdout = if as_json {
+        json::sweeps(&results)
+    } else {
+        text::sweeps(&scene, &results, &written)
+    };
+    Ok(Outcome {
+        stdout,
+        warnings,
+        exit: 0,
+    })
 }

@@ -144,6 +144,8 @@ pub struct VictimReport {
     pub sources: Vec<SourceCoupling>,
     /// Phasor sums per distinct frequency (Hz, V peak).
     pub by_frequency: Vec<(f64, Complex64)>,
+    /// With a `load`: the rms voltage across it, V (see [`load_voltage`]).
+    pub load_rms: Option<f64>,
 }
 
 impl VictimReport {
@@ -169,11 +171,25 @@ pub fn couple_victim(scene: &crate::Scene, victim: &crate::scene::Victim) -> Vic
         })
         .collect();
     let by_frequency = emf_by_frequency(&sources);
+    let load_rms = victim.load.map(|r| {
+        let v: Vec<(f64, Complex64)> = by_frequency
+            .iter()
+            .map(|&(f, e)| (f, load_voltage(e, f, r, victim.self_inductance)))
+            .collect();
+        total_rms(&v)
+    });
     VictimReport {
         id: victim.id.clone(),
         limit: victim.limit,
         total_rms: total_rms(&by_frequency),
         sources,
         by_frequency,
+        load_rms,
     }
+}
+
+/// Voltage across a load `r` (ohm) fed by EMF phasor `e` (V) at `f` (Hz) through the
+/// loop's own inductance `l` (H): V = E·R / (R + jωL) (a voltage divider).
+pub fn load_voltage(e: Complex64, f: f64, r: f64, l: f64) -> Complex64 {
+    e * r / Complex64::new(r, TAU * f * l)
 }

@@ -28,12 +28,14 @@ pub mod error;
 pub mod field;
 pub mod geometry;
 pub mod inductance;
+pub mod orientation;
 pub mod output;
 pub mod points_csv;
 pub mod probe;
 pub mod quadrature;
 pub mod scene;
 pub mod spectrum;
+pub mod sweep;
 pub mod units;
 pub mod waveform;
 

@@ -47,6 +47,25 @@ enum Command {
         /// Exit with status 3 when any victim exceeds its limit.
         #[arg(long)]
         strict: bool,
+        /// Also write each victim's EMF spectrum as DIR/<victim>-spectrum.svg.
+        #[arg(long, value_name = "DIR")]
+        plot: Option<PathBuf>,
+    },
+    /// Run the scene's sweeps (distance, angle, frequency): write DIR/<id>.csv and
+    /// DIR/<id>.svg and print the safe distance.
+    #[command(after_help = CAUTIONS)]
+    Sweep {
+        /// Scene file (TOML).
+        scene: PathBuf,
+        /// Run only the sweep with this id.
+        #[arg(long, value_name = "ID")]
+        only: Option<String>,
+        /// Folder for the CSV and SVG files (created if missing).
+        #[arg(long, value_name = "DIR", default_value = "out")]
+        out: PathBuf,
+        /// Print one JSON document instead of the summary.
+        #[arg(long)]
+        json: bool,
     },
     /// The B phasor of every spectral line at given points.
     #[command(after_help = CAUTIONS)]
@@ -67,6 +86,21 @@ enum Command {
     },
 }
 
+/// A progress bar on stderr when stderr is a terminal; none otherwise.
+fn progress_bar() -> Option<indicatif::ProgressBar> {
+    use std::io::IsTerminal;
+    if !std::io::stderr().is_terminal() {
+        return None;
+    }
+    let bar = indicatif::ProgressBar::new(0);
+    let style = indicatif::ProgressStyle::with_template(
+        "{spinner} {wide_bar} {pos}/{len} steps, {elapsed} elapsed, about {eta} left",
+    )
+    .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar());
+    bar.set_style(style);
+    Some(bar)
+}
+
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match &cli.command {
@@ -75,7 +109,26 @@ fn main() -> ExitCode {
             scene,
             json,
             strict,
-        } => app::couple(scene, *json, *strict),
+            plot,
+        } => app::couple(scene, *json, *strict, plot.as_deref()),
+        Command::Sweep {
+            scene,
+            only,
+            out,
+            json,
+        } => {
+            let bar = progress_bar();
+            let result = app::sweep(scene, only.as_deref(), out, *json, &|done, total| {
+                if let Some(b) = &bar {
+                    b.set_length(total as u64);
+                    b.set_position(done as u64);
+                }
+            });
+            if let Some(b) = bar {
+                b.finish_and_clear();
+            }
+            result
+        }
         Command::Probe {
             scene,
             at,

@@ -10,6 +10,7 @@ mod segment;
 
 pub use dipole::Dipole;
 pub use segment::Polyline;
+pub(crate) use segment::any_perpendicular;
 
 use rayon::prelude::*;
 

@@ -2,6 +2,7 @@
 //! parametrised by t ∈ [0, 1] in the direction of positive EMF.
 
 use crate::field::Vec3;
+use nalgebra::Rotation3;
 
 /// One piece of a closed victim path, in scene coordinates (m).
 #[derive(Clone, Copy, Debug)]
@@ -74,6 +75,32 @@ impl Edge {
             Edge::Arc {
                 radius, start, end, ..
             } => radius * (end - start).abs(),
+        }
+    }
+
+    /// The edge turned by `rotation` about `pivot` and then moved by `offset` (m).
+    pub fn moved(&self, rotation: &Rotation3<f64>, pivot: &Vec3, offset: &Vec3) -> Edge {
+        let place = |p: &Vec3| rotation * (p - pivot) + pivot + offset;
+        match *self {
+            Edge::Line { a, b } => Edge::Line {
+                a: place(&a),
+                b: place(&b),
+            },
+            Edge::Arc {
+                centre,
+                u,
+                v,
+                radius,
+                start,
+                end,
+            } => Edge::Arc {
+                centre: place(&centre),
+                u: rotation * u,
+                v: rotation * v,
+                radius,
+                start,
+                end,
+            },
         }
     }
 

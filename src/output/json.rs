@@ -71,6 +71,8 @@ struct CoupleVictim {
     total_emf_v_rms: f64,
     margin_db: Option<f64>,
     pass: Option<bool>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    load_v_rms: Option<f64>,
     sources: Vec<CoupleSource>,
 }
 
@@ -101,6 +103,7 @@ pub fn couple(reports: &[VictimReport]) -> String {
             total_emf_v_rms: r.total_rms,
             margin_db: r.margin_db().filter(|m| m.is_finite()),
             pass: r.pass(),
+            load_v_rms: r.load_rms,
             sources: r
                 .sources
                 .iter()
@@ -171,4 +174,58 @@ fn to_string<T: Serialize>(doc: &T) -> String {
         serde_json::to_string_pretty(doc).unwrap_or_else(|e| format!("{{\"error\": \"{e}\"}}"));
     s.push('\n');
     s
+}
+
+#[derive(Serialize)]
+struct SweepDoc {
+    sweeps: Vec<SweepJson>,
+}
+
+#[derive(Serialize)]
+struct SweepJson {
+    id: String,
+    vary: &'static str,
+    unit: &'static str,
+    safe_value: Option<f64>,
+    rows: Vec<SweepJsonRow>,
+}
+
+#[derive(Serialize)]
+struct SweepJsonRow {
+    value: f64,
+    total_emf_v_rms: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    worst_axis: Option<[f64; 3]>,
+}
+
+/// `sweep --json`: values in `unit` (m for distance, deg for angle, Hz for frequency).
+pub fn sweeps(results: &[crate::sweep::SweepResult]) -> String {
+    use crate::output::csv::value_in_unit;
+    use crate::scene::sweep::Vary;
+    let sweeps = results
+        .iter()
+        .map(|r| {
+            let vary = &r.spec.vary;
+            SweepJson {
+                id: r.spec.id.clone(),
+                vary: vary.name(),
+                unit: match vary {
+                    Vary::Distance(_) => "m",
+                    Vary::Angle(_) => "deg",
+                    Vary::Frequency => "Hz",
+                },
+                safe_value: r.safe_value,
+                rows: r
+                    .rows
+                    .iter()
+                    .map(|row| SweepJsonRow {
+                        value: value_in_unit(vary, row.value),
+                        total_emf_v_rms: row.total_rms,
+                        worst_axis: row.worst_axis.map(|a| [a.x, a.y, a.z]),
+                    })
+                    .collect(),
+            }
+        })
+        .collect();
+    to_string(&SweepDoc { sweeps })
 }

@@ -164,6 +164,15 @@ pub fn couple(scene: &Scene, reports: &[VictimReport]) -> String {
                 let _ = writeln!(out, "; no limit set");
             }
         }
+        if let (Some(vl), Some(r_load)) = (r.load_rms, v.load) {
+            let _ = writeln!(
+                out,
+                "  across the {} load (through the loop's {} self-inductance): {} rms",
+                si(r_load, "Ω"),
+                si(v.self_inductance, "H"),
+                si(vl, "V")
+            );
+        }
     }
     if reports.is_empty() {
         let _ = writeln!(out, "\nthe scene has no [[victim]]: nothing to couple");
@@ -207,4 +216,103 @@ fn safe_unit(c: f64, n: f64) -> f64 {
 
 fn plural(n: f64) -> &'static str {
     if n == 1.0 { "" } else { "s" }
+}
+
+/// `sweep`: per sweep the range, the safe value and the orientation advice.
+pub fn sweeps(scene: &Scene, results: &[crate::sweep::SweepResult], written: &[String]) -> String {
+    use crate::scene::sweep::Vary;
+    let mut out = String::new();
+    title(&mut out, "sweeps", scene);
+    for r in results {
+        let v = &scene.victims[r.spec.victim];
+        let fmt_value = |x: f64| match r.spec.vary {
+            Vary::Distance(_) => si(x, "m"),
+            Vary::Angle(_) => format!("{:.2}°", x.to_degrees()),
+            Vary::Frequency => si(x, "Hz"),
+        };
+        let _ = writeln!(
+            out,
+            "\nsweep {}: victim {}, {} from {} to {} in {} steps ({}){}",
+            r.spec.id,
+            v.id,
+            r.spec.vary.name(),
+            fmt_value(r.spec.from),
+            fmt_value(r.spec.to),
+            r.spec.steps,
+            if r.spec.log { "log" } else { "linear" },
+            if r.spec.worst {
+                ", worst-case orientation at every step"
+            } else {
+                ""
+            }
+        );
+        let (lo, hi) = r.rows.iter().fold((f64::INFINITY, 0.0f64), |(a, b), row| {
+            (a.min(row.total_rms), b.max(row.total_rms))
+        });
+        let _ = writeln!(
+            out,
+            "  total EMF between {} and {} rms",
+            si(lo, "V"),
+            si(hi, "V")
+        );
+        match (r.limit, r.spec.vary) {
+            (Some(l), Vary::Distance(_)) => match r.safe_value {
+                Some(s) if s == r.spec.from => {
+                    let _ = writeln!(out, "  under the {} limit over the whole range", si(l, "V"));
+                }
+                Some(s) => {
+                    let _ = writeln!(
+                        out,
+                        "  SAFE DISTANCE: beyond {} moved (total under {} rms to the end of the range)",
+                        si(s, "m"),
+                        si(l, "V")
+                    );
+                }
+                None => {
+                    let _ = writeln!(
+                        out,
+                        "  never under the {} limit within the range",
+                        si(l, "V")
+                    );
+                }
+            },
+            (Some(l), _) => {
+                let n = r.rows.iter().filter(|row| row.total_rms > l).count();
+                let _ = writeln!(
+                    out,
+                    "  {n} of {} steps over the {} limit",
+                    r.rows.len(),
+                    si(l, "V")
+                );
+            }
+            (None, _) => {
+                let _ = writeln!(out, "  victim has no limit: no safe value");
+            }
+        }
+        if let Some(b) = r.best_at_placed {
+            let gain = crate::coupling::margin_db(r.placed_total, b.total_rms);
+            let axis = format!("[{:.3}, {:.3}, {:.3}]", b.normal.x, b.normal.y, b.normal.z);
+            let _ = if gain > 100.0 {
+                writeln!(
+                    out,
+                    "  at its placed position, turning the victim's axis to {axis} puts it in a \
+                     null (more than 100 dB under the {} as placed; in practice limited by how \
+                     exactly it can be placed)",
+                    si(r.placed_total, "V")
+                )
+            } else {
+                writeln!(
+                    out,
+                    "  at its placed position, turning the victim's axis to {axis} gives {} rms \
+                     ({} as placed, {gain:.1} dB less)",
+                    si(b.total_rms, "V"),
+                    si(r.placed_total, "V"),
+                )
+            };
+        }
+    }
+    if !written.is_empty() {
+        let _ = writeln!(out, "\nwrote {}", written.join(", "));
+    }
+    out
 }

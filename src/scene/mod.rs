@@ -8,6 +8,7 @@
 mod current;
 pub mod reader;
 mod source;
+pub mod sweep;
 mod victim;
 mod windings;
 
@@ -37,6 +38,8 @@ pub struct Scene {
     pub sources: Vec<Source>,
     /// Victim loops in file order.
     pub victims: Vec<Victim>,
+    /// Sweeps in file order.
+    pub sweeps: Vec<sweep::SweepSpec>,
     /// Warnings found while loading (results outside the model, unclosed paths).
     pub warnings: Vec<String>,
 }
@@ -79,6 +82,45 @@ pub struct Victim {
     pub area: f64,
     /// Low-frequency self-inductance of all turns, H.
     pub self_inductance: f64,
+    /// Load resistance across the victim's terminals, ohm (`load = { resistance }`).
+    pub load: Option<f64>,
+}
+
+impl Victim {
+    /// The victim turned by `rotation` about its centre and moved by `offset` (m).
+    pub fn moved(&self, rotation: &nalgebra::Rotation3<f64>, offset: &Vec3) -> Victim {
+        let pivot = self.frame.origin;
+        let edges = self
+            .edges
+            .iter()
+            .map(|e| e.moved(rotation, &pivot, offset))
+            .collect();
+        let frame = Frame {
+            origin: pivot + offset,
+            x: rotation * self.frame.x,
+            y: rotation * self.frame.y,
+            z: rotation * self.frame.z,
+        };
+        Victim {
+            edges,
+            frame,
+            ..self.clone()
+        }
+    }
+
+    /// The victim tilted by the smallest rotation that takes its axis to `normal`
+    /// (a unit vector), about its centre.
+    pub fn facing(&self, normal: &Vec3) -> Victim {
+        let rotation =
+            nalgebra::Rotation3::rotation_between(&self.frame.z, normal).unwrap_or_else(|| {
+                // Antiparallel: half a turn about the victim's own x axis.
+                nalgebra::Rotation3::from_axis_angle(
+                    &nalgebra::Unit::new_normalize(self.frame.x),
+                    std::f64::consts::PI,
+                )
+            });
+        self.moved(&rotation, &Vec3::zeros())
+    }
 }
 
 impl Scene {
@@ -156,8 +198,8 @@ impl Scene {
 }
 
 /// Top-level tables, those of later versions refused by name.
-const TOP_KEYS: &[&str] = &["scene", "solver", "source", "victim"];
-const LATER_KEYS: &[&str] = &["shield", "enclosure", "sweep", "map"];
+const TOP_KEYS: &[&str] = &["scene", "solver", "source", "victim", "sweep"];
+const LATER_KEYS: &[&str] = &["shield", "enclosure", "map"];
 
 fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, InputError> {
     for later in LATER_KEYS {
@@ -200,6 +242,12 @@ fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, In
         check_unique(&item, &v.id, &mut ids)?;
         victims.push(v);
     }
+    let mut sweeps = Vec::new();
+    for item in array_of_tables(root, "sweep")? {
+        let s = sweep::parse(&item, &victims)?;
+        check_unique(&item, &s.id, &mut ids)?;
+        sweeps.push(s);
+    }
     root.finish(TOP_KEYS, "a scene file")?;
     if sources.is_empty() {
         return Err(root.error("the scene has no [[source]]: add at least one"));
@@ -210,6 +258,7 @@ fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, In
         wire_radius,
         sources,
         victims,
+        sweeps,
         warnings,
     };
     let mut extra = Vec::new();

@@ -35,12 +35,17 @@ pub(crate) fn parse(t: &Table<'_, '_>, ctx: &Context) -> Result<Victim, InputErr
         Some(v) => Some(v.positive(Dimension::Voltage)?),
         None => None,
     };
-    if t.has("load") {
-        return Err(t.error_at(
-            "load",
-            "`load` is not supported yet in this version; the open-circuit EMF is reported",
-        ));
-    }
+    let load = match t.get("load") {
+        Some(v) => {
+            let lt = v.table()?;
+            let r = lt
+                .require("resistance", "the load resistance, e.g. \"10 kohm\"")?
+                .positive(Dimension::Resistance)?;
+            lt.finish(&[], "`load` (resistance)")?;
+            Some(r)
+        }
+        None => None,
+    };
     let (edges, one_turn_l) = match kind {
         "loop" => {
             let r = t.require("radius", "the loop radius, e.g. \"5 mm\"")?;
@@ -103,6 +108,7 @@ pub(crate) fn parse(t: &Table<'_, '_>, ctx: &Context) -> Result<Victim, InputErr
         wire_radius,
         area,
         self_inductance: one_turn_l * turns * turns,
+        load,
     })
 }
 

@@ -1,0 +1,74 @@
+//! CSV tables of sweeps: one row per step.
+
+use crate::scene::sweep::Vary;
+use crate::sweep::SweepResult;
+use std::fmt::Write;
+
+/// Header name of the swept value's column, with its unit.
+pub fn value_column(vary: &Vary) -> &'static str {
+    match vary {
+        Vary::Distance(_) => "distance_m",
+        Vary::Angle(_) => "angle_deg",
+        Vary::Frequency => "fundamental_hz",
+    }
+}
+
+/// The swept value in the unit of [`value_column`].
+pub fn value_in_unit(vary: &Vary, v: f64) -> f64 {
+    match vary {
+        Vary::Angle(_) => v.to_degrees(),
+        _ => v,
+    }
+}
+
+/// The sweep as CSV: the swept value, every line's EMF (rms, V), the total, the margin
+/// (dB, empty without a limit) and, for worst-case sweeps, the worst axis.
+pub fn sweep_csv(result: &SweepResult) -> String {
+    let vary = &result.spec.vary;
+    let mut out = String::new();
+    out.push_str(value_column(vary));
+    let first = result
+        .rows
+        .first()
+        .map(|r| r.lines.as_slice())
+        .unwrap_or(&[]);
+    for (k, (f, _)) in first.iter().enumerate() {
+        if matches!(vary, Vary::Frequency) {
+            let _ = write!(out, ",line{}_emf_v_rms", k + 1);
+        } else {
+            let _ = write!(out, ",emf_v_rms_at_{}_hz", trim_float(*f));
+        }
+    }
+    out.push_str(",total_emf_v_rms,margin_db");
+    if result.spec.worst {
+        out.push_str(",worst_axis_x,worst_axis_y,worst_axis_z");
+    }
+    out.push('\n');
+    for r in &result.rows {
+        let _ = write!(out, "{:e}", value_in_unit(vary, r.value));
+        for k in 0..first.len() {
+            let e = r
+                .lines
+                .get(k)
+                .map_or(0.0, |l| l.1.norm() / std::f64::consts::SQRT_2);
+            let _ = write!(out, ",{e:e}");
+        }
+        let _ = write!(out, ",{:e},", r.total_rms);
+        if let Some(l) = result.limit {
+            let m = crate::coupling::margin_db(l, r.total_rms);
+            if m.is_finite() {
+                let _ = write!(out, "{m:.4}");
+            }
+        }
+        if let Some(a) = r.worst_axis {
+            let _ = write!(out, ",{:.6},{:.6},{:.6}", a.x, a.y, a.z);
+        }
+        out.push('\n');
+    }
+    out
+}
+
+fn trim_float(f: f64) -> String {
+    let s = format!("{f}");
+    s.trim_end_matches(".0").to_string()
+}

@@ -1,0 +1,164 @@
+//! `[[sweep]]` tables → validated sweep specifications.
+
+use super::reader::Table;
+use super::{Victim, parse_id};
+use crate::error::InputError;
+use crate::field::Vec3;
+use crate::units::Dimension;
+
+/// What a sweep varies.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Vary {
+    /// The victim moves along a unit direction from its placed position; values in m.
+    Distance(Vec3),
+    /// The victim turns about a unit axis through its centre; values in rad.
+    Angle(Vec3),
+    /// The fundamental of every source; its lines scale with it; values in Hz.
+    Frequency,
+}
+
+impl Vary {
+    /// The keyword as written in scenes and JSON.
+    pub fn name(&self) -> &'static str {
+        match self {
+            Vary::Distance(_) => "distance",
+            Vary::Angle(_) => "angle",
+            Vary::Frequency => "frequency",
+        }
+    }
+}
+
+/// A validated sweep.
+#[derive(Clone, Debug)]
+pub struct SweepSpec {
+    /// Unique id (names the output files).
+    pub id: String,
+    /// Index of the victim in `Scene::victims`.
+    pub victim: usize,
+    /// What varies.
+    pub vary: Vary,
+    /// First value (m, rad or Hz).
+    pub from: f64,
+    /// Last value (m, rad or Hz).
+    pub to: f64,
+    /// Number of samples, at least 2; `from` and `to` are sampled exactly.
+    pub steps: usize,
+    /// Logarithmic spacing (else linear).
+    pub log: bool,
+    /// Turn the victim to its worst-case orientation at every step.
+    pub worst: bool,
+}
+
+impl SweepSpec {
+    /// The swept values: `steps` samples from `from` to `to`, endpoints exact.
+    pub fn values(&self) -> Vec<f64> {
+        let n = self.steps;
+        (0..n)
+            .map(|k| {
+                if k == 0 {
+                    return self.from;
+                }
+                if k == n - 1 {
+                    return self.to;
+                }
+                let t = k as f64 / (n - 1) as f64;
+                if self.log {
+                    (self.from.ln() + (self.to.ln() - self.from.ln()) * t).exp()
+                } else {
+                    self.from + (self.to - self.from) * t
+                }
+            })
+            .collect()
+    }
+}
+
+/// Largest number of steps a sweep may take (each step is a full coupling solve).
+const MAX_STEPS: u64 = 100_000;
+
+pub(crate) fn parse(t: &Table<'_, '_>, victims: &[Victim]) -> Result<SweepSpec, InputError> {
+    let id = parse_id(t)?;
+    let vv = t.require("victim", "the id of the victim to sweep")?;
+    let vid = vv.string()?;
+    let Some(victim) = victims.iter().position(|v| v.id == vid) else {
+        let known: Vec<&str> = victims.iter().map(|v| v.id.as_str()).collect();
+        return Err(vv.error(format!(
+            "no victim has id \"{vid}\" (victims: {})",
+            if known.is_empty() {
+                "none".to_string()
+            } else {
+                known.join(", ")
+            }
+        )));
+    };
+    let kv = t.require("vary", "distance, angle or frequency")?;
+    let (vary, dim) = match kv.string()? {
+        "distance" => {
+            let d = t.require("along", "the direction the victim moves, e.g. [1, 0, 0]")?;
+            (Vary::Distance(d.direction()?), Dimension::Length)
+        }
+        "angle" => {
+            let a = t.require("about", "the axis the victim turns about, e.g. [0, 0, 1]")?;
+            (Vary::Angle(a.direction()?), Dimension::Angle)
+        }
+        "frequency" => (Vary::Frequency, Dimension::Frequency),
+        other => {
+            return Err(kv.error(format!(
+                "unknown vary \"{other}\"; expected distance, angle or frequency"
+            )));
+        }
+    };
+    let fv = t.require("from", &format!("the first value, {}", dim.noun()))?;
+    let from = fv.quantity(dim)?;
+    let tv = t.require("to", &format!("the last value, {}", dim.noun()))?;
+    let to = tv.quantity(dim)?;
+    if from == to {
+        return Err(tv.error("`to` equals `from`: the sweep would cover no range"));
+    }
+    let sv = t.require("steps", "the number of samples, at least 2")?;
+    let steps = sv.count(2)?;
+    if steps > MAX_STEPS {
+        return Err(sv.error(format!("{steps} steps is more than {MAX_STEPS}")));
+    }
+    let log = match t.get("scale") {
+        None => !matches!(vary, Vary::Angle(_)),
+        Some(v) => match v.string()? {
+            "log" => true,
+            "linear" => false,
+            other => {
+                return Err(v.error(format!("unknown scale \"{other}\"; expected log or linear")));
+            }
+        },
+    };
+    if log && (from <= 0.0 || to <= 0.0) {
+        return Err(
+            fv.error("a log scale needs `from` and `to` greater than zero; use scale = \"linear\"")
+        );
+    }
+    if matches!(vary, Vary::Frequency) && (from <= 0.0 || to <= 0.0) {
+        return Err(fv.error("frequencies must be greater than zero"));
+    }
+    let worst = match t.get("orientation") {
+        None => false,
+        Some(v) => match v.string()? {
+            "as-placed" => false,
+            "worst" => true,
+            other => {
+                return Err(v.error(format!(
+                    "unknown orientation \"{other}\"; expected as-placed or worst"
+                )));
+            }
+        },
+    };
+    let context = format!("a sweep of {}", vary.name());
+    t.finish(&["along", "about"], &context)?;
+    Ok(SweepSpec {
+        id,
+        victim,
+        vary,
+        from,
+        to,
+        steps: steps as usize,
+        log,
+        worst,
+    })
+}

@@ -4,7 +4,7 @@ use rayon::prelude::*;
 use std::sync::OnceLock;
 
 /// Points per Gauss–Legendre panel; exact for polynomials of degree 2·ORDER − 1.
-pub const ORDER: usize = 12;
+pub const ORDER: usize = 6;
 
 /// Deepest halving of one first-pass panel (2^-30 of its length).
 const MAX_DEPTH: u32 = 30;

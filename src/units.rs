@@ -305,6 +305,11 @@ pub fn format_si(value: f64, unit: &str, digits: usize) -> String {
     format!("{scaled:.decimals$} {prefix}{unit}")
 }
 
+/// A length for messages, in engineering units: `mm(2e-4)` = `"200.0 µm"`.
+pub fn mm(metres: f64) -> String {
+    format_si(metres, "m", 4)
+}
+
 /// Formats an area in m² with the prefix on the metre, e.g. `"706.9 mm²"`.
 pub fn format_area(value: f64, digits: usize) -> String {
     let (factor, unit) = if value.abs() >= 1.0 {

@@ -6,6 +6,7 @@
 //! the caller scales them by each spectral line's current phasor.
 
 mod dipole;
+mod kernel;
 mod segment;
 
 pub use dipole::Dipole;

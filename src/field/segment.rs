@@ -12,16 +12,21 @@
 //! meet there. Within the wire radius the field of a round conductor carrying uniform
 //! current is used instead, so no point gives NaN or infinity.
 
+use super::kernel::{Soa, log_sum};
 use super::{FieldSource, MU0_OVER_4PI, Vec3};
 
 /// A filament path carrying `weight` amperes per ampere of source current.
 ///
 /// Invariants (checked where scenes are built): at least two vertices, no zero-length
 /// segment, `wire_radius > 0`. A closed path repeats its first vertex at the end.
+/// Build it with [`Polyline::new`]; it keeps each segment's direction and length, so
+/// change `vertices` only by building a new one.
 #[derive(Clone, Debug)]
 pub struct Polyline {
     /// Vertices in metres, in the direction of positive current.
     pub vertices: Vec<Vec3>,
+    /// The same geometry laid out for the vector kernel, computed once.
+    soa: Soa,
     /// Ampere-turns carried per ampere of source current (1 for a single wire; negative
     /// reverses the current).
     pub weight: f64,
@@ -32,8 +37,10 @@ pub struct Polyline {
 impl Polyline {
     /// A path through `vertices` (m) with one ampere per ampere and the given radius (m).
     pub fn new(vertices: Vec<Vec3>, wire_radius: f64) -> Self {
+        let soa = Soa::new(&vertices);
         Polyline {
             vertices,
+            soa,
             weight: 1.0,
             wire_radius,
         }
@@ -111,24 +118,25 @@ impl FieldSource for Polyline {
 
     fn a_and_gross_per_amp(&self, r: &Vec3) -> (Vec3, f64) {
         let radius = self.wire_radius;
+        let k = MU0_OVER_4PI * self.weight;
+        if self.soa.segments() == self.segment_count() {
+            let careful = |seg: usize, r_i: f64, r_f: f64| {
+                let d_i = r - self.vertices[seg];
+                let d_f = r - self.vertices[seg + 1];
+                segment_a(&d_i, r_i, &d_f, r_f, radius).1
+            };
+            let (sum, gross) = log_sum(&self.soa, r, radius, careful);
+            return (sum * k, gross * k.abs());
+        }
+        // `vertices` changed after construction: the plain scalar loop.
         let mut sum = Vec3::zeros();
         let mut gross = 0.0;
-        let mut iter = self.vertices.iter();
-        let Some(first) = iter.next() else {
-            return (sum, 0.0);
-        };
-        let mut d_i = r - first;
-        let mut r_i = d_i.norm();
-        for v in iter {
-            let d_f = r - v;
-            let r_f = d_f.norm();
-            let (e, log) = segment_a(&d_i, r_i, &d_f, r_f, radius);
+        for w in self.vertices.windows(2) {
+            let (d_i, d_f) = (r - w[0], r - w[1]);
+            let (e, log) = segment_a(&d_i, d_i.norm(), &d_f, d_f.norm(), radius);
             sum += e * log;
             gross += log.abs();
-            d_i = d_f;
-            r_i = r_f;
         }
-        let k = MU0_OVER_4PI * self.weight;
         (sum * k, gross * k.abs())
     }
 }

@@ -190,8 +190,10 @@ impl Scene {
             .fold(f64::INFINITY, f64::min);
         (nearest.is_finite() && nearest > 0.1 * limit).then(|| {
             format!(
-                "{what} is {nearest:.3e} m from the nearest source, beyond a tenth of λ/2π \
-                 ({limit:.3e} m at the highest line): the quasi-static model may not hold there"
+                "{what} is {} from the nearest source, beyond a tenth of λ/2π ({} at the \
+                 highest line): the quasi-static model may not hold there",
+                crate::units::format_si(nearest, "m", 4),
+                crate::units::format_si(limit, "m", 4)
             )
         })
     }

@@ -9,7 +9,7 @@ use crate::field::{Conductors, FieldSource, Vec3};
 use crate::geometry::{
     circle_source, dipole_source, polygon_source, polyline_source, rectangle_corners,
 };
-use crate::units::Dimension;
+use crate::units::{Dimension, mm};
 
 /// Solver settings every element needs while it is built.
 pub(crate) struct Context {
@@ -204,9 +204,10 @@ fn calibrate_lines(
 pub(crate) fn check_wire(v: &Value<'_, '_>, size: f64, wire_radius: f64) -> Result<(), InputError> {
     if wire_radius * 2.0 >= size {
         return Err(v.error(format!(
-            "{size:e} m is not larger than the wire diameter ({:e} m); make it larger or set a \
-             smaller `wire_radius`",
-            2.0 * wire_radius
+            "{} is not larger than the wire diameter ({}); make it larger or set a smaller \
+             `wire_radius`",
+            mm(size),
+            mm(2.0 * wire_radius)
         )));
     }
     Ok(())
@@ -258,8 +259,9 @@ pub(crate) fn parse_polygon(v: &Value<'_, '_>, wire_radius: f64) -> Result<Vec<V
         .fold(f64::INFINITY, f64::min);
     if shortest <= 2.0 * wire_radius {
         return Err(v.error(format!(
-            "a side of {shortest:e} m is not longer than the wire diameter ({:e} m)",
-            2.0 * wire_radius
+            "a side of {} is not longer than the wire diameter ({})",
+            mm(shortest),
+            mm(2.0 * wire_radius)
         )));
     }
     Ok(pts)

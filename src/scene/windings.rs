@@ -6,7 +6,7 @@ use crate::error::InputError;
 use crate::field::{Conductors, Polyline, Vec3};
 use crate::geometry::{Frame, helix, pair, round_spiral, saddle, square_spiral, toroid};
 use crate::points_csv::read_point_rows;
-use crate::units::Dimension;
+use crate::units::{Dimension, mm};
 use std::f64::consts::PI;
 
 /// Reads the geometry of a winding `kind` into conductors.
@@ -67,9 +67,10 @@ fn turns_whole(t: &Table<'_, '_>) -> Result<u64, InputError> {
 fn check_pitch(v: &Value<'_, '_>, pitch: f64, wire_radius: f64) -> Result<(), InputError> {
     if pitch < 2.0 * wire_radius * (1.0 - 1e-9) {
         return Err(v.error(format!(
-            "the turns would overlap: the pitch {pitch:e} m is less than the wire diameter \
-             {:e} m; use fewer turns or a smaller `wire_radius`",
-            2.0 * wire_radius
+            "the turns would overlap: the pitch {} is less than the wire diameter {}; use \
+             fewer turns or a smaller `wire_radius`",
+            mm(pitch),
+            mm(2.0 * wire_radius)
         )));
     }
     Ok(())
@@ -126,7 +127,9 @@ fn parse_toroid(
     let turns = turns_whole(t)?;
     if minor >= major {
         return Err(mv.error(format!(
-            "must be smaller than major_radius ({major:e} m), got {minor:e} m"
+            "must be smaller than major_radius ({}), got {}",
+            mm(major),
+            mm(minor)
         )));
     }
     check_wire(&mv, minor, wire_radius)?;
@@ -151,7 +154,9 @@ fn parse_spiral(
     let turns = turns_real(t)?;
     if inner >= outer {
         return Err(ov.error(format!(
-            "must be larger than inner_radius ({inner:e} m), got {outer:e} m"
+            "must be larger than inner_radius ({}), got {}",
+            mm(inner),
+            mm(outer)
         )));
     }
     check_pitch(&ov, (outer - inner) / turns, wire_radius)?;

@@ -1,0 +1,153 @@
+//! The vector-potential sum over a polyline's segments, four segments per SIMD group.
+//!
+//! Structure of arrays: vertex coordinates and each segment's unit direction and length
+//! sit in separate arrays. For a field point the distance to every vertex is computed
+//! once (shared by the two segments meeting there), then each group of four segments
+//! takes ln((Ri+Rf+L)/(Ri+Rf−L)) in one vector operation. Groups with a segment close
+//! enough for cancellation or the wire radius to matter fall back to the careful scalar
+//! form lane by lane. The order of additions is fixed, so results do not depend on the
+//! thread count.
+
+use super::Vec3;
+use std::cell::RefCell;
+use wide::f64x4;
+
+/// A polyline's geometry laid out for the vector kernel.
+#[derive(Clone, Debug, Default)]
+pub(crate) struct Soa {
+    x: Vec<f64>,
+    y: Vec<f64>,
+    z: Vec<f64>,
+    ex: Vec<f64>,
+    ey: Vec<f64>,
+    ez: Vec<f64>,
+    len: Vec<f64>,
+}
+
+impl Soa {
+    /// Lays out `vertices` (m).
+    pub(crate) fn new(vertices: &[Vec3]) -> Self {
+        let mut s = Soa::default();
+        for v in vertices {
+            s.x.push(v.x);
+            s.y.push(v.y);
+            s.z.push(v.z);
+        }
+        for w in vertices.windows(2) {
+            let d = w[1] - w[0];
+            let l = d.norm();
+            let e = if l > 0.0 { d / l } else { Vec3::zeros() };
+            s.ex.push(e.x);
+            s.ey.push(e.y);
+            s.ez.push(e.z);
+            s.len.push(l);
+        }
+        s
+    }
+
+    /// Number of segments laid out.
+    pub(crate) fn segments(&self) -> usize {
+        self.len.len()
+    }
+
+    /// Unit direction of segment `k`.
+    pub(crate) fn direction(&self, k: usize) -> Vec3 {
+        Vec3::new(self.ex[k], self.ey[k], self.ez[k])
+    }
+}
+
+thread_local! {
+    static DISTANCES: RefCell<Vec<f64>> = const { RefCell::new(Vec::new()) };
+}
+
+fn load(v: &[f64], k: usize) -> f64x4 {
+    f64x4::from([v[k], v[k + 1], v[k + 2], v[k + 3]])
+}
+
+/// Σ ê·ln((Ri+Rf+L)/(Ri+Rf−L)) over segments and Σ |ln(...)|, for the point `r` (m)
+/// and wire radius `radius` (m). `careful(k, r_i, r_f)` gives the log of segment `k`
+/// for points near it.
+pub(crate) fn log_sum<F: Fn(usize, f64, f64) -> f64>(
+    soa: &Soa,
+    r: &Vec3,
+    radius: f64,
+    careful: F,
+) -> (Vec3, f64) {
+    DISTANCES.with(|buf| {
+        let mut dist = buf.borrow_mut();
+        vertex_distances(soa, r, &mut dist);
+        segment_logs(soa, &dist, radius, careful)
+    })
+}
+
+fn vertex_distances(soa: &Soa, r: &Vec3, out: &mut Vec<f64>) {
+    let n = soa.x.len();
+    out.clear();
+    out.resize(n, 0.0);
+    let (rx, ry, rz) = (f64x4::splat(r.x), f64x4::splat(r.y), f64x4::splat(r.z));
+    let groups = n / 4;
+    for g in 0..groups {
+        let k = 4 * g;
+        let dx = rx - load(&soa.x, k);
+        let dy = ry - load(&soa.y, k);
+        let dz = rz - load(&soa.z, k);
+        let d = (dx * dx + dy * dy + dz * dz).sqrt().to_array();
+        out[k..k + 4].copy_from_slice(&d);
+    }
+    for k in 4 * groups..n {
+        out[k] =
+            ((r.x - soa.x[k]).powi(2) + (r.y - soa.y[k]).powi(2) + (r.z - soa.z[k]).powi(2)).sqrt();
+    }
+}
+
+fn segment_logs<F: Fn(usize, f64, f64) -> f64>(
+    soa: &Soa,
+    dist: &[f64],
+    radius: f64,
+    careful: F,
+) -> (Vec3, f64) {
+    let m = soa.segments();
+    let (mut ax, mut ay, mut az, mut ag) = (f64x4::ZERO, f64x4::ZERO, f64x4::ZERO, f64x4::ZERO);
+    let two_a = f64x4::splat(2.0 * radius);
+    let hundredth = f64x4::splat(0.01);
+    let groups = m / 4;
+    for g in 0..groups {
+        let k = 4 * g;
+        let ri = load(dist, k);
+        let rf = load(dist, k + 1);
+        let l = load(&soa.len, k);
+        let s = ri + rf;
+        let u = s - l;
+        let safe = u.simd_ge(two_a) & u.simd_gt(l * hundredth);
+        let mut log = ((s + l) / u).ln();
+        if !safe.all() {
+            let mut lanes = log.to_array();
+            let ok = safe.to_bitmask();
+            for (lane, value) in lanes.iter_mut().enumerate() {
+                if ok & (1 << lane) == 0 {
+                    *value = careful(k + lane, dist[k + lane], dist[k + lane + 1]);
+                }
+            }
+            log = f64x4::from(lanes);
+        }
+        ax += load(&soa.ex, k) * log;
+        ay += load(&soa.ey, k) * log;
+        az += load(&soa.ez, k) * log;
+        ag += log.abs();
+    }
+    let mut sum = Vec3::new(ax.reduce_add(), ay.reduce_add(), az.reduce_add());
+    let mut gross = ag.reduce_add();
+    for k in 4 * groups..m {
+        let (ri, rf, l) = (dist[k], dist[k + 1], soa.len[k]);
+        let s = ri + rf;
+        let u = s - l;
+        let log = if u >= 2.0 * radius && u > 0.01 * l {
+            ((s + l) / u).ln()
+        } else {
+            careful(k, ri, rf)
+        };
+        sum += soa.direction(k) * log;
+        gross += log.abs();
+    }
+    (sum, gross)
+}

@@ -282,3 +282,129 @@ pub fn sweep(
         exit: 0,
     })
 }
+
+/// `map SCENE [--only ID] [--out DIR]`: write `<id>.vti` per map (one per line and a
+/// `.pvd` with `line = "all"`), `scene.vtp`, and for plane maps a quick-look `<id>.svg`.
+/// Refuses (exit 2) a map whose memory estimate exceeds `max_memory` bytes.
+pub fn map(
+    path: &Path,
+    only: Option<&str>,
+    out_dir: &Path,
+    max_memory: u64,
+    progress: &(dyn Fn(usize, usize) + Sync),
+) -> Result<Outcome, Error> {
+    use crate::fieldmap::{line_field, map_frequencies, memory_estimate};
+    let scene = Scene::load(path)?;
+    let chosen: Vec<&crate::scene::map::MapSpec> = match only {
+        Some(id) => scene.maps.iter().filter(|m| m.id == id).collect(),
+        None => scene.maps.iter().collect(),
+    };
+    if chosen.is_empty() {
+        return Err(Error::Usage(match only {
+            Some(id) => format!("--only {id}: the scene has no map with that id"),
+            None => format!(
+                "{}: the scene has no [[map]]; add one (see README, Field maps)",
+                path.display()
+            ),
+        }));
+    }
+    for m in &chosen {
+        let need = memory_estimate(&scene, m);
+        if need > max_memory {
+            return Err(Error::Usage(format!(
+                "map \"{}\" ({} points) needs about {} of memory, more than the limit of {}; \
+                 use a larger step or fewer cells, or raise --max-memory",
+                m.id,
+                m.point_count(),
+                crate::units::format_si(need as f64, "B", 3),
+                crate::units::format_si(max_memory as f64, "B", 3)
+            )));
+        }
+    }
+    let lines_hz = distinct_lines(&scene);
+    let mut warnings = scene.warnings.clone();
+    let total: usize = chosen.iter().map(|m| m.point_count()).sum();
+    let done = std::sync::atomic::AtomicUsize::new(0);
+    files::ensure_dir(out_dir)?;
+    let mut written = Vec::new();
+    for m in &chosen {
+        let points = m.all_points();
+        let [nx, ny, nz] = m.points;
+        let mut corners = Vec::new();
+        for i in [0, nx - 1] {
+            for j in [0, ny - 1] {
+                for k in [0, nz - 1] {
+                    corners.push(m.point(i, j, k));
+                }
+            }
+        }
+        let far = corners
+            .iter()
+            .find_map(|p| scene.far_point_warning(&format!("a corner of map \"{}\"", m.id), p));
+        warnings.extend(far);
+        let per_amp = chunked_fields(&scene, &points, &|n| {
+            let d = done.fetch_add(n, std::sync::atomic::Ordering::Relaxed) + n;
+            progress(d, total);
+        });
+        let freqs = map_frequencies(m, &lines_hz);
+        let mut entries = Vec::new();
+        for (k, f) in freqs.iter().enumerate() {
+            let b = line_field(&scene, &per_amp, *f);
+            let name = if freqs.len() > 1 {
+                format!("{}-line{}.vti", m.id, k + 1)
+            } else {
+                format!("{}.vti", m.id)
+            };
+            let xml = crate::output::vtk::image_data(m, *f, &b).map_err(Error::Run)?;
+            files::write_atomic(&out_dir.join(&name), xml.as_bytes())?;
+            written.push(out_dir.join(&name).display().to_string());
+            if m.plane && k == 0 {
+                match crate::output::quicklook::plane_svg(&scene, m, *f, &b) {
+                    Ok(svg) => {
+                        let p = out_dir.join(format!("{}.svg", m.id));
+                        files::write_atomic(&p, svg.as_bytes())?;
+                        written.push(p.display().to_string());
+                    }
+                    Err(why) => warnings.push(format!("map \"{}\": {why}", m.id)),
+                }
+            }
+            entries.push((*f, name));
+        }
+        if freqs.len() > 1 {
+            let p = out_dir.join(format!("{}.pvd", m.id));
+            files::write_atomic(&p, crate::output::vtk::collection(&entries).as_bytes())?;
+            written.push(p.display().to_string());
+        }
+    }
+    let size = chosen
+        .iter()
+        .map(|m| (m.spacing.x.max(m.spacing.y).max(m.spacing.z)) * 4.0)
+        .fold(1e-3, f64::max);
+    let vtp = crate::output::vtk::scene_polydata(&scene, size).map_err(Error::Run)?;
+    let p = out_dir.join("scene.vtp");
+    files::write_atomic(&p, vtp.as_bytes())?;
+    written.push(p.display().to_string());
+    let mut stdout = String::new();
+    for w in &written {
+        stdout.push_str(&format!("wrote {w}\n"));
+    }
+    Ok(Outcome {
+        stdout,
+        warnings,
+        exit: 0,
+    })
+}
+
+/// B per ampere of every source at `points`, in chunks so that `tick(points done)` can
+/// report progress.
+fn chunked_fields(scene: &Scene, points: &[Vec3], tick: &(dyn Fn(usize) + Sync)) -> Vec<Vec<Vec3>> {
+    const CHUNK: usize = 1 << 14;
+    let mut out: Vec<Vec<Vec3>> = vec![Vec::with_capacity(points.len()); scene.sources.len()];
+    for chunk in points.chunks(CHUNK) {
+        for (o, s) in out.iter_mut().zip(&scene.sources) {
+            o.extend(crate::field::b_at_points(&s.conductors, chunk));
+        }
+        tick(chunk.len());
+    }
+    out
+}

@@ -26,6 +26,7 @@ pub mod app;
 pub mod coupling;
 pub mod error;
 pub mod field;
+pub mod fieldmap;
 pub mod geometry;
 pub mod inductance;
 pub mod orientation;

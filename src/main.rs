@@ -51,6 +51,24 @@ enum Command {
         #[arg(long, value_name = "DIR")]
         plot: Option<PathBuf>,
     },
+    /// Write field maps for ParaView: DIR/<id>.vti per map (one per line and a .pvd
+    /// with line = "all"), DIR/scene.vtp with the conductors and victims, and a
+    /// quick-look DIR/<id>.svg for plane maps.
+    #[command(after_help = CAUTIONS)]
+    Map {
+        /// Scene file (TOML).
+        scene: PathBuf,
+        /// Write only the map with this id.
+        #[arg(long, value_name = "ID")]
+        only: Option<String>,
+        /// Folder for the output files (created if missing).
+        #[arg(long, value_name = "DIR", default_value = "out")]
+        out: PathBuf,
+        /// Refuse maps whose estimated memory exceeds this ("4 GiB", "500 MB", bytes);
+        /// default: half the machine's memory.
+        #[arg(long, value_name = "SIZE")]
+        max_memory: Option<String>,
+    },
     /// Run the scene's sweeps (distance, angle, frequency): write DIR/<id>.csv and
     /// DIR/<id>.svg and print the safe distance.
     #[command(after_help = CAUTIONS)]
@@ -86,6 +104,33 @@ enum Command {
     },
 }
 
+fn run_map(
+    scene: &std::path::Path,
+    only: Option<&str>,
+    out: &std::path::Path,
+    max_memory: Option<&str>,
+) -> Result<app::Outcome, strayflux::Error> {
+    let limit = match max_memory {
+        Some(text) => strayflux::fieldmap::parse_memory(text).ok_or_else(|| {
+            strayflux::Error::Usage(format!(
+                "--max-memory \"{text}\": expected a size such as \"4 GiB\" or \"500 MB\""
+            ))
+        })?,
+        None => strayflux::fieldmap::default_memory_limit(),
+    };
+    let bar = progress_bar();
+    let result = app::map(scene, only, out, limit, &|done, total| {
+        if let Some(b) = &bar {
+            b.set_length(total as u64);
+            b.set_position(done as u64);
+        }
+    });
+    if let Some(b) = bar {
+        b.finish_and_clear();
+    }
+    result
+}
+
 /// A progress bar on stderr when stderr is a terminal; none otherwise.
 fn progress_bar() -> Option<indicatif::ProgressBar> {
     use std::io::IsTerminal;
@@ -94,7 +139,7 @@ fn progress_bar() -> Option<indicatif::ProgressBar> {
     }
     let bar = indicatif::ProgressBar::new(0);
     let style = indicatif::ProgressStyle::with_template(
-        "{spinner} {wide_bar} {pos}/{len} steps, {elapsed} elapsed, about {eta} left",
+        "{spinner} {wide_bar} {pos}/{len}, {elapsed} elapsed, about {eta} left",
     )
     .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar());
     bar.set_style(style);
@@ -111,6 +156,12 @@ fn main() -> ExitCode {
             strict,
             plot,
         } => app::couple(scene, *json, *strict, plot.as_deref()),
+        Command::Map {
+            scene,
+            only,
+            out,
+            max_memory,
+        } => run_map(scene, only.as_deref(), out, max_memory.as_deref()),
         Command::Sweep {
             scene,
             only,

@@ -4,4 +4,6 @@ pub mod csv;
 pub mod files;
 pub mod json;
 pub mod plot;
+pub mod quicklook;
 pub mod text;
+pub mod vtk;

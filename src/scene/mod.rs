@@ -6,6 +6,7 @@
 //! problem stops the load with one located [`InputError`].
 
 mod current;
+pub mod map;
 pub mod reader;
 mod source;
 pub mod sweep;
@@ -40,6 +41,8 @@ pub struct Scene {
     pub victims: Vec<Victim>,
     /// Sweeps in file order.
     pub sweeps: Vec<sweep::SweepSpec>,
+    /// Field maps in file order.
+    pub maps: Vec<map::MapSpec>,
     /// Warnings found while loading (results outside the model, unclosed paths).
     pub warnings: Vec<String>,
 }
@@ -200,8 +203,8 @@ impl Scene {
 }
 
 /// Top-level tables, those of later versions refused by name.
-const TOP_KEYS: &[&str] = &["scene", "solver", "source", "victim", "sweep"];
-const LATER_KEYS: &[&str] = &["shield", "enclosure", "map"];
+const TOP_KEYS: &[&str] = &["scene", "solver", "source", "victim", "sweep", "map"];
+const LATER_KEYS: &[&str] = &["shield", "enclosure"];
 
 fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, InputError> {
     for later in LATER_KEYS {
@@ -250,6 +253,13 @@ fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, In
         check_unique(&item, &s.id, &mut ids)?;
         sweeps.push(s);
     }
+    let line_count = distinct_line_count(&sources);
+    let mut maps = Vec::new();
+    for item in array_of_tables(root, "map")? {
+        let m = map::parse(&item, line_count)?;
+        check_unique(&item, &m.id, &mut ids)?;
+        maps.push(m);
+    }
     root.finish(TOP_KEYS, "a scene file")?;
     if sources.is_empty() {
         return Err(root.error("the scene has no [[source]]: add at least one"));
@@ -261,6 +271,7 @@ fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, In
         sources,
         victims,
         sweeps,
+        maps,
         warnings,
     };
     let mut extra = Vec::new();
@@ -272,6 +283,17 @@ fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, In
     let mut scene = scene;
     scene.warnings.extend(extra);
     Ok(scene)
+}
+
+/// Number of distinct line frequencies over all sources.
+fn distinct_line_count(sources: &[Source]) -> usize {
+    let mut f: Vec<f64> = sources
+        .iter()
+        .flat_map(|s| s.lines.iter().map(|l| l.frequency))
+        .collect();
+    f.sort_by(f64::total_cmp);
+    f.dedup_by(|a, b| crate::spectrum::same_frequency(*a, *b));
+    f.len()
 }
 
 fn parse_solver(root: &Table<'_, '_>) -> Result<(f64, f64), InputError> {

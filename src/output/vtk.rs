@@ -1,0 +1,197 @@
+//! VTK XML files for ParaView: `.vti` image data (field maps), `.vtp` poly data (the
+//! scene's conductors and victims) and `.pvd` collections (one map per spectral line).
+//!
+//! Written with the vtkio crate as zlib-compressed binary (base64 inline). vtkio has no
+//! field-data support, so the small `<FieldData>` blocks that name things are inserted
+//! into its XML text.
+
+use crate::Scene;
+use crate::field::Vec3;
+use crate::scene::map::MapSpec;
+use num_complex::Complex64;
+use vtkio::model::{
+    Attribute, Attributes, ByteOrder, DataSet, Extent, ImageDataPiece, Piece, PolyDataPiece,
+    Version, VertexNumbers, Vtk,
+};
+use vtkio::xml::Compressor;
+
+/// zlib level: 6 is zlib's own default balance of size and speed.
+const ZLIB_LEVEL: u32 = 6;
+
+fn to_xml(vtk: Vtk) -> Result<String, String> {
+    vtk.try_into_xml_format(Compressor::ZLib, ZLIB_LEVEL)
+        .map(|f| f.to_string())
+        .map_err(|e| format!("cannot encode the VTK file: {e}"))
+}
+
+/// Inserts `<FieldData>` with one single-value array per (name, value) right after the
+/// opening tag of the dataset element `element` (`ImageData`, `PolyData`).
+fn with_field_data(xml: String, element: &str, fields: &[(String, String, &str)]) -> String {
+    let open = format!("<{element}");
+    let Some(start) = xml.find(&open) else {
+        return xml;
+    };
+    let Some(end) = xml[start..].find('>') else {
+        return xml;
+    };
+    let at = start + end + 1;
+    let mut block = String::from("<FieldData>");
+    for (name, value, ty) in fields {
+        block.push_str(&format!(
+            "<DataArray type=\"{ty}\" Name=\"{}\" NumberOfTuples=\"1\" format=\"ascii\">{value}</DataArray>",
+            xml_escape(name)
+        ));
+    }
+    block.push_str("</FieldData>");
+    let mut out = xml;
+    out.insert_str(at, &block);
+    out
+}
+
+fn xml_escape(s: &str) -> String {
+    s.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+        .replace('"', "&quot;")
+}
+
+/// A `.vti` of one line's field on the map grid: point data `B_re`, `B_im` (vectors, T,
+/// peak phasor) and `B_rms` (rms of |B|, T), field data `frequency_hz`.
+pub fn image_data(spec: &MapSpec, frequency: f64, b: &[[Complex64; 3]]) -> Result<String, String> {
+    let n = b.len();
+    let mut re = Vec::with_capacity(3 * n);
+    let mut im = Vec::with_capacity(3 * n);
+    let mut rms = Vec::with_capacity(n);
+    for p in b {
+        for c in p {
+            re.push(c.re);
+            im.push(c.im);
+        }
+        rms.push((p.iter().map(|c| c.norm_sqr()).sum::<f64>() / 2.0).sqrt());
+    }
+    let [nx, ny, nz] = spec.points.map(|p| p as u32 - 1);
+    let extent = Extent::Ranges([0..=nx as i32, 0..=ny as i32, 0..=nz as i32]);
+    let vtk = Vtk {
+        version: Version::new_xml(1, 0),
+        title: String::new(),
+        byte_order: ByteOrder::LittleEndian,
+        file_path: None,
+        data: DataSet::ImageData {
+            extent: extent.clone(),
+            origin: spec.origin.map(|x| x as f32).into(),
+            spacing: spec.spacing.map(|x| x as f32).into(),
+            meta: None,
+            pieces: vec![Piece::Inline(Box::new(ImageDataPiece {
+                extent,
+                data: Attributes {
+                    point: vec![
+                        Attribute::vectors("B_re").with_data(re),
+                        Attribute::vectors("B_im").with_data(im),
+                        Attribute::scalars("B_rms", 1).with_data(rms),
+                    ],
+                    cell: vec![],
+                },
+            }))],
+        },
+    };
+    let xml = to_xml(vtk)?;
+    Ok(with_field_data(
+        xml,
+        "ImageData",
+        &[("frequency_hz".into(), format!("{frequency:e}"), "Float64")],
+    ))
+}
+
+/// Sample points of every victim edge: straight edges as they are, arcs every 1/64 turn.
+fn victim_path(edges: &[crate::geometry::Edge]) -> Vec<Vec3> {
+    let mut pts = Vec::new();
+    for e in edges {
+        let n = match e {
+            crate::geometry::Edge::Line { .. } => 1,
+            crate::geometry::Edge::Arc { start, end, .. } => {
+                ((end - start).abs() / std::f64::consts::TAU * 64.0)
+                    .ceil()
+                    .max(1.0) as usize
+            }
+        };
+        for k in 0..n {
+            pts.push(e.point(k as f64 / n as f64));
+        }
+    }
+    if let Some(&first) = pts.first() {
+        pts.push(first);
+    }
+    pts
+}
+
+/// `scene.vtp`: every source wire and victim path as a polyline (cell data `element` =
+/// the element's index, sources first, then victims; point dipoles as a short segment
+/// along their moment), with field data `source:<id>` / `victim:<id>` = that index.
+pub fn scene_polydata(scene: &Scene, dipole_length: f64) -> Result<String, String> {
+    let mut paths: Vec<(usize, Vec<Vec3>)> = Vec::new();
+    let mut names = Vec::new();
+    for (i, s) in scene.sources.iter().enumerate() {
+        for w in &s.conductors.wires {
+            paths.push((i, w.vertices.clone()));
+        }
+        for d in &s.conductors.dipoles {
+            let half = d.moment_per_amp.normalize() * (dipole_length / 2.0);
+            paths.push((i, vec![d.position - half, d.position + half]));
+        }
+        names.push((format!("source:{}", s.id), i.to_string(), "Int32"));
+    }
+    let base = scene.sources.len();
+    for (j, v) in scene.victims.iter().enumerate() {
+        paths.push((base + j, victim_path(&v.edges)));
+        names.push((format!("victim:{}", v.id), (base + j).to_string(), "Int32"));
+    }
+    let mut points = Vec::new();
+    let mut connectivity = Vec::new();
+    let mut offsets = Vec::new();
+    let mut element = Vec::new();
+    for (idx, path) in &paths {
+        for p in path {
+            connectivity.push((points.len() / 3) as u64);
+            points.extend_from_slice(&[p.x, p.y, p.z]);
+        }
+        offsets.push(connectivity.len() as u64);
+        element.push(*idx as i32);
+    }
+    let vtk = Vtk {
+        version: Version::new_xml(1, 0),
+        title: String::new(),
+        byte_order: ByteOrder::LittleEndian,
+        file_path: None,
+        data: DataSet::inline(PolyDataPiece {
+            points: points.into(),
+            verts: None,
+            lines: Some(VertexNumbers::XML {
+                connectivity,
+                offsets,
+            }),
+            polys: None,
+            strips: None,
+            data: Attributes {
+                point: vec![],
+                cell: vec![Attribute::scalars("element", 1).with_data(element)],
+            },
+        }),
+    };
+    Ok(with_field_data(to_xml(vtk)?, "PolyData", &names))
+}
+
+/// A `.pvd` collection: each (frequency Hz, file name) as a dataset whose time value is
+/// the frequency, so ParaView's time control steps through the lines.
+pub fn collection(entries: &[(f64, String)]) -> String {
+    let mut s = String::from(
+        "<?xml version=\"1.0\"?>\n<VTKFile type=\"Collection\" version=\"0.1\" byte_order=\"LittleEndian\">\n  <Collection>\n",
+    );
+    for (f, file) in entries {
+        s.push_str(&format!(
+            "    <DataSet timestep=\"{f:e}\" group=\"\" part=\"0\" file=\"{}\"/>\n",
+            xml_escape(file)
+        ));
+    }
+    s.push_str("  </Collection>\n</VTKFile>\n");
+    s
+}

@@ -1,0 +1,194 @@
+//! `[[map]]` tables → validated field-map grids.
+
+use super::parse_id;
+use super::reader::Table;
+use crate::error::InputError;
+use crate::field::Vec3;
+use crate::units::Dimension;
+
+/// Which spectral lines a map holds.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum MapLines {
+    /// One line, by its one-based number in ascending frequency (1 = fundamental).
+    One(usize),
+    /// Every line: one file each, plus a `.pvd` collection.
+    All,
+}
+
+/// A validated map: a regular grid of points.
+#[derive(Clone, Debug)]
+pub struct MapSpec {
+    /// Unique id (names the output files).
+    pub id: String,
+    /// Grid origin, m (the `min` corner, rounded to f32 as VTK image data stores it).
+    pub origin: Vec3,
+    /// Point spacing per axis, m (rounded to f32; 0 on a plane's flat axis).
+    pub spacing: Vec3,
+    /// Points per axis (1 on a plane's flat axis).
+    pub points: [usize; 3],
+    /// Whether one axis is flat (a plane map).
+    pub plane: bool,
+    /// The lines to write.
+    pub lines: MapLines,
+}
+
+impl MapSpec {
+    /// Total number of grid points.
+    pub fn point_count(&self) -> usize {
+        self.points.iter().product()
+    }
+
+    /// Position of point (i, j, k), m: origin + index × spacing, x fastest in storage.
+    pub fn point(&self, i: usize, j: usize, k: usize) -> Vec3 {
+        self.origin
+            + Vec3::new(
+                i as f64 * self.spacing.x,
+                j as f64 * self.spacing.y,
+                k as f64 * self.spacing.z,
+            )
+    }
+
+    /// Every grid point, x fastest, then y, then z (VTK order).
+    pub fn all_points(&self) -> Vec<Vec3> {
+        let [nx, ny, nz] = self.points;
+        let mut out = Vec::with_capacity(self.point_count());
+        for k in 0..nz {
+            for j in 0..ny {
+                for i in 0..nx {
+                    out.push(self.point(i, j, k));
+                }
+            }
+        }
+        out
+    }
+}
+
+/// More points than this on one map is refused before any memory estimate (1e9).
+const MAX_POINTS: f64 = 1e9;
+
+pub(crate) fn parse(t: &Table<'_, '_>, line_count: usize) -> Result<MapSpec, InputError> {
+    let id = parse_id(t)?;
+    let kv = t.require("kind", "box or plane")?;
+    let kind = kv.string()?;
+    if kind != "box" && kind != "plane" {
+        return Err(kv.error(format!("unknown kind \"{kind}\"; expected box or plane")));
+    }
+    let min_v = t.require("min", "the lower corner [x, y, z]")?;
+    let min = min_v.vector(Dimension::Length)?;
+    let max_v = t.require("max", "the upper corner [x, y, z]")?;
+    let max = max_v.vector(Dimension::Length)?;
+    let mut flat = 0;
+    for a in 0..3 {
+        if max[a] < min[a] {
+            return Err(max_v.error(format!(
+                "max is below min on the {} axis",
+                ["x", "y", "z"][a]
+            )));
+        }
+        if max[a] == min[a] {
+            flat += 1;
+        }
+    }
+    match (kind, flat) {
+        ("box", 0) | ("plane", 1) => {}
+        ("box", _) => {
+            return Err(max_v
+                .error("a box needs max > min on every axis (for a plane, use kind = \"plane\")"));
+        }
+        _ => {
+            return Err(max_v.error(
+                "a plane needs min == max on exactly one axis and max > min on the others",
+            ));
+        }
+    }
+    let cells = grid_cells(t, &min, &max)?;
+    let origin = min.map(|x| x as f32 as f64);
+    let mut spacing = Vec3::zeros();
+    for a in 0..3 {
+        if cells[a] > 0 {
+            spacing[a] = ((max[a] - min[a]) / cells[a] as f64) as f32 as f64;
+        }
+    }
+    let lines = match t.get("line") {
+        None => MapLines::One(1),
+        Some(v) => match v.string() {
+            Ok("all") => MapLines::All,
+            Ok(other) => {
+                return Err(v.error(format!(
+                    "expected a line number (1 = fundamental) or \"all\", got \"{other}\""
+                )));
+            }
+            Err(_) => {
+                let n = v.count(1)? as usize;
+                if n > line_count {
+                    return Err(v.error(format!(
+                        "line {n} does not exist: the scene's sources have {line_count} \
+                         distinct line(s)"
+                    )));
+                }
+                MapLines::One(n)
+            }
+        },
+    };
+    t.finish(&["step", "cells"], &format!("a {kind} map"))?;
+    Ok(MapSpec {
+        id,
+        origin,
+        spacing,
+        points: [cells[0] + 1, cells[1] + 1, cells[2] + 1],
+        plane: kind == "plane",
+        lines,
+    })
+}
+
+/// Cells per axis from exactly one of `step` (a length; each extent is split into the
+/// whole number of cells nearest to extent/step) or `cells` ([nx, ny, nz]; 0 on a
+/// plane's flat axis).
+fn grid_cells(t: &Table<'_, '_>, min: &Vec3, max: &Vec3) -> Result<[usize; 3], InputError> {
+    let extent = max - min;
+    let mut cells = [0usize; 3];
+    match (t.get("step"), t.get("cells")) {
+        (Some(s), None) => {
+            let step = s.positive(Dimension::Length)?;
+            let total: f64 = (0..3)
+                .map(|a| (extent[a] / step).round().max(0.0) + 1.0)
+                .product();
+            if total > MAX_POINTS {
+                return Err(s.error(format!(
+                    "this step gives {total:.3e} points, more than {MAX_POINTS:.0e}; use a larger step"
+                )));
+            }
+            for a in 0..3 {
+                if extent[a] > 0.0 {
+                    cells[a] = ((extent[a] / step).round() as usize).max(1);
+                }
+            }
+        }
+        (None, Some(c)) => {
+            let items = c.array()?;
+            if items.len() != 3 {
+                return Err(c.error("expected three cell counts [nx, ny, nz]"));
+            }
+            let mut total = 1.0;
+            for a in 0..3 {
+                let n = items[a].count(0)? as usize;
+                if extent[a] > 0.0 && n == 0 {
+                    return Err(items[a].error("an axis with max > min needs at least 1 cell"));
+                }
+                if extent[a] == 0.0 && n != 0 {
+                    return Err(items[a].error("the flat axis of a plane has 0 cells"));
+                }
+                total *= n as f64 + 1.0;
+                cells[a] = n;
+            }
+            if total > MAX_POINTS {
+                return Err(c.error(format!("{total:.3e} points is more than {MAX_POINTS:.0e}")));
+            }
+        }
+        (Some(_), Some(_)) => return Err(t.error_at("cells", "give `step` or `cells`, not both")),
+        (None, None) => {
+            return Err(t.error("missing key `step` (e.g. \"1 mm\") or `cells` ([nx, ny, nz])"));
+        }
+    }
+    Ok(cells)
+}

@@ -94,8 +94,8 @@ fn vertex_distances(soa: &Soa, r: &Vec3, out: &mut Vec<f64>) {
         let d = (dx * dx + dy * dy + dz * dz).sqrt().to_array();
         out[k..k + 4].copy_from_slice(&d);
     }
-    for k in 4 * groups..n {
-        out[k] =
+    for (k, o) in out.iter_mut().enumerate().skip(4 * groups) {
+        *o =
             ((r.x - soa.x[k]).powi(2) + (r.y - soa.y[k]).powi(2) + (r.z - soa.z[k]).powi(2)).sqrt();
     }
 }

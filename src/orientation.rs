@@ -16,7 +16,8 @@ use num_complex::Complex64;
 /// The orientation search's answer.
 #[derive(Clone, Copy, Debug)]
 pub struct Orientation {
-    /// Unit loop normal (the victim tilted by the smallest rotation onto it).
+    /// Unit loop normal: the victim tilted by the smallest rotation that takes its axis
+    /// onto this vector (n and −n are different placements of a non-circular loop).
     pub normal: Vec3,
     /// Total rms EMF there, V.
     pub total_rms: f64,
@@ -79,15 +80,25 @@ pub fn search<F: Fn(&Victim) -> f64>(
         order.reverse();
     }
     let better = |a: f64, b: f64| if worst { a > b } else { a < b };
+    // Both signs of every eigenvector: a non-circular loop tilted onto n and onto −n
+    // sits differently in its own plane, so the two can differ in a non-uniform field.
     let starts: Vec<Vec3> = order
         .iter()
-        .map(|&k| eig.eigenvectors.column(k).into_owned())
+        .flat_map(|&k| {
+            let e = eig.eigenvectors.column(k).into_owned();
+            [e, -e]
+        })
         .collect();
-    // Refine from the small-loop answer; a large loop in a non-uniform field may prefer
-    // another eigenvector, so refine from any that already does better as it stands.
+    // Refine from the small-loop answer (both signs); a large loop in a non-uniform
+    // field may prefer another eigenvector, so refine from any that does better as it
+    // stands.
     let mut best = refine(victim, starts[0], worst, &total);
+    let other = refine(victim, starts[1], worst, &total);
+    if better(other.total_rms, best.total_rms) {
+        best = other;
+    }
     if worst {
-        for start in &starts[1..] {
+        for start in &starts[2..] {
             if better(total(&victim.facing(start)), best.total_rms) {
                 let found = refine(victim, *start, worst, &total);
                 if better(found.total_rms, best.total_rms) {
@@ -127,10 +138,6 @@ fn refine<F: Fn(&Victim) -> f64>(
         if !moved {
             step /= 2.0;
         }
-    }
-    // Report the normal in the hemisphere of the victim's own axis.
-    if n.dot(&victim.frame.z) < 0.0 {
-        n = -n;
     }
     Orientation {
         normal: n,

@@ -408,8 +408,8 @@ current = { peak = "1 A", frequency = "50 Hz" }
         "source[1].id",
         "not a valid id",
     );
-    let later = format!("{GOOD_SOURCE}[[map]]\nid = \"m\"\n");
-    assert_bad("later.toml", &later, 6, 3, "map", "not supported yet");
+    let later = format!("{GOOD_SOURCE}[[shield]]\nid = \"plate\"\n");
+    assert_bad("later.toml", &later, 6, 3, "shield", "not supported yet");
     let no_source = "[scene]\ntitle = \"empty\"\n";
     assert_bad("nosource.toml", no_source, 1, 1, "", "no [[source]]");
     let top_typo = GOOD_SOURCE.replace("[[source]]", "[[sources]]");

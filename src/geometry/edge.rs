@@ -104,12 +104,12 @@ impl Edge {
         }
     }
 
-    /// Number of first-pass quadrature panels: one per 1/32 of a turn for arcs.
+    /// Number of first-pass quadrature panels: one per 1/8 of a turn for arcs.
     pub(crate) fn initial_panels(&self) -> usize {
         match *self {
             Edge::Line { .. } => 1,
             Edge::Arc { start, end, .. } => {
-                ((end - start).abs() / std::f64::consts::TAU * 32.0).ceil() as usize
+                ((end - start).abs() / std::f64::consts::TAU * 8.0).ceil() as usize
             }
         }
         .max(1)

@@ -73,7 +73,12 @@ pub fn toroid(
 ) -> Polyline {
     let per_turn = chords(TAU, tolerance);
     let n = per_turn * turns as usize;
-    let r = minor * chord_factor(TAU / per_turn as f64);
+    let step = TAU / per_turn as f64;
+    let r = minor * chord_factor(step);
+    // The chord factor gives each turn its exact cross-section, but the projected area
+    // of the path (the one-turn loop's moment) averages ρ_k ρ_(k+1) = R² + r²(1 − Δθ²/3)/2
+    // instead of R² + r²/2: move the centre line out by the difference.
+    let major = (major * major + minor * minor * step * step / 6.0).sqrt();
     let mut v: Vec<Vec3> = (0..n)
         .map(|k| {
             let t = k as f64 / n as f64;
@@ -147,6 +152,21 @@ pub fn square_spiral(
     place(frame, v, wire_radius)
 }
 
+/// Radius for the interior vertices of an n-chord arc of `radius` whose end vertices
+/// stay on the arc, so that the chord polygon (with the centre) has the sector's area
+/// n·R²·step/2: two end triangles ½Rρ sin(step) and n − 2 inner ones ½ρ² sin(step).
+fn arc_interior_radius(radius: f64, step: f64, n: usize) -> f64 {
+    let (a, b, c) = (
+        (n as f64 - 2.0) * step.sin(),
+        2.0 * radius * step.sin(),
+        -(n as f64) * radius * radius * step,
+    );
+    if a == 0.0 {
+        return -c / b;
+    }
+    (-b + (b * b - 4.0 * a * c).sqrt()) / (2.0 * a)
+}
+
 /// A pair of saddle coils on a cylinder of `radius` about local z, `length` long (m),
 /// each spanning `opening` (rad) of the circumference, centred on local +x and −x, wound
 /// so that both drive the field at the centre along +x. Each coil is one closed path:
@@ -159,15 +179,17 @@ pub fn saddle(
     tolerance: f64,
     wire_radius: f64,
 ) -> [Polyline; 2] {
-    let n = chords(opening, tolerance);
-    let rho = radius * chord_factor(opening / n as f64);
+    let n = chords(opening, tolerance).max(2);
+    let rho = arc_interior_radius(radius, opening / n as f64, n);
     let arc = |centre: f64, z: f64, forward: bool| -> Vec<Vec3> {
         (0..=n)
             .map(|k| {
                 let t = k as f64 / n as f64;
                 let t = if forward { t } else { 1.0 - t };
                 let ph = centre - opening / 2.0 + opening * t;
-                Vec3::new(rho * ph.cos(), rho * ph.sin(), z)
+                // The ends stay on the cylinder, where the axial runs are.
+                let r = if k == 0 || k == n { radius } else { rho };
+                Vec3::new(r * ph.cos(), r * ph.sin(), z)
             })
             .collect()
     };

@@ -71,9 +71,18 @@ pub struct Table<'a, 'i> {
     span: Range<usize>,
     table: &'a DeTable<'i>,
     read: RefCell<Vec<String>>,
+    valid: RefCell<Vec<String>>,
 }
 
 impl<'a, 'i> Table<'a, 'i> {
+    /// Declares keys that are valid in this table (whether or not this kind reads
+    /// them), so that a missing key is never blamed on a present, valid one.
+    pub fn declare(&self, keys: &[&str]) {
+        self.valid
+            .borrow_mut()
+            .extend(keys.iter().map(|k| k.to_string()));
+    }
+
     /// The document's root table.
     pub fn root(doc: &'a Doc, root: &'a Spanned<DeTable<'i>>) -> Self {
         Table::new(doc, String::new(), root.span(), root.get_ref())
@@ -86,6 +95,7 @@ impl<'a, 'i> Table<'a, 'i> {
             span,
             table,
             read: RefCell::new(Vec::new()),
+            valid: RefCell::new(Vec::new()),
         }
     }
 
@@ -136,11 +146,16 @@ impl<'a, 'i> Table<'a, 'i> {
         if let Some(v) = self.get(name) {
             return Ok(v);
         }
-        let present: Vec<&str> = self.table.keys().map(|k| k.get_ref().as_ref()).collect();
-        if let Some(typo) = present
-            .iter()
-            .copied()
-            .find(|p| did_you_mean(p, &[name]).is_some())
+        let valid = self.valid.borrow();
+        let read = self.read.borrow();
+        let typo = self
+            .table
+            .keys()
+            .map(|k| k.get_ref().as_ref())
+            .filter(|p: &&str| !valid.iter().any(|v| v == p) && !read.iter().any(|r| r == p))
+            .filter(|p| did_you_mean(p, &[name]).is_some())
+            .min_by_key(|p| strsim::damerau_levenshtein(p, name));
+        if let Some(typo) = typo
             && let Some((k, _)) = self.table.get_key_value(typo)
         {
             return Err(self.doc.error(

@@ -62,6 +62,16 @@ pub(crate) fn parse(
     ctx: &Context,
     warnings: &mut Vec<String>,
 ) -> Result<Source, InputError> {
+    t.declare(GEOMETRY_KEYS);
+    t.declare(&[
+        "id",
+        "kind",
+        "position",
+        "axis",
+        "reference",
+        "wire_radius",
+        "current",
+    ]);
     let id = parse_id(t)?;
     let kind = parse_kind(t, KINDS, &[])?;
     let frame = parse_frame(t)?;

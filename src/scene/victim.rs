@@ -19,6 +19,17 @@ const GEOMETRY_KEYS: &[&str] = &["radius", "width", "height", "vertices", "lengt
 const STRIP_TO_ROUND: f64 = 0.286_504_796_860_190_1;
 
 pub(crate) fn parse(t: &Table<'_, '_>, ctx: &Context) -> Result<Victim, InputError> {
+    t.declare(GEOMETRY_KEYS);
+    t.declare(&[
+        "id",
+        "kind",
+        "position",
+        "axis",
+        "reference",
+        "wire_radius",
+        "turns",
+        "limit",
+    ]);
     let id = parse_id(t)?;
     let kind = parse_kind(t, KINDS, &[])?;
     let frame = parse_frame(t)?;

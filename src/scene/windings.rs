@@ -133,6 +133,12 @@ fn parse_toroid(
         )));
     }
     check_wire(&mv, minor, wire_radius)?;
+    let tv = t.get("turns").expect("read above");
+    check_pitch(
+        &tv,
+        std::f64::consts::TAU * (major - minor) / turns as f64,
+        wire_radius,
+    )?;
     Ok(toroid(
         frame,
         major,

@@ -288,3 +288,38 @@ pub fn rel_vec(got: &Vec3, want: &Vec3) -> f64 {
 pub fn rel(got: f64, want: f64) -> f64 {
     (got - want).abs() / want.abs()
 }
+
+/// Low-frequency self-inductance (H) of a circle of radius `r` (m) in round wire of
+/// radius `a` (m), uniform current (internal inductance μ0/8π per metre included):
+///   L = μ0 r (ln(8r/a) − 2 + 1/4),
+/// Rosa & Grover, "Formulas and tables for the calculation of mutual and
+/// self-inductance", Bull. Bureau of Standards 8 (1912); Grover, "Inductance
+/// Calculations" (1946), circular ring of round wire. From memory.
+pub fn rosa_grover_circle(r: f64, a: f64) -> f64 {
+    MU0 * r * ((8.0 * r / a).ln() - 1.75)
+}
+
+/// Low-frequency self-inductance (H) of a rectangle of sides `a`, `b` (m) in round wire
+/// of radius `rho` (m), for sides ≫ rho:
+///   L = (μ0/π)[a ln(2a/ρ) + b ln(2b/ρ) + 2√(a²+b²) − a asinh(a/b) − b asinh(b/a)
+///              − (7/4)(a + b)],
+/// Grover, "Inductance Calculations" (1946), the rectangle of round wire (there in μH
+/// with lengths in cm). From memory; its structure (two sides' partial
+/// self-inductances minus the opposite sides' mutuals) and its square limit are checked
+/// in tests/sweeps.rs.
+pub fn grover_rectangle(a: f64, b: f64, rho: f64) -> f64 {
+    let d = (a * a + b * b).sqrt();
+    MU0 / PI
+        * (a * (2.0 * a / rho).ln() + b * (2.0 * b / rho).ln() + 2.0 * d
+            - a * (a / b).asinh()
+            - b * (b / a).asinh()
+            - 1.75 * (a + b))
+}
+
+/// |B| (T) at the centre of a Helmholtz pair: two coaxial circles of radius `r` (m),
+/// `r` apart, each of `turns` turns carrying `current` (A) in the same sense:
+///   B = (4/5)^{3/2} μ0 N I / r
+/// (e.g. Jackson, "Classical Electrodynamics", 3rd ed., problem 5.7; from memory).
+pub fn helmholtz_centre_b(r: f64, turns: f64, current: f64) -> f64 {
+    0.8f64.powf(1.5) * MU0 * turns * current / r
+}

@@ -124,11 +124,10 @@ pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotEr
         scale: 1.0,
     };
     let totals: Vec<f64> = result.rows.iter().map(|r| r.total_rms).collect();
-    let peak = totals
-        .iter()
-        .copied()
-        .fold(0.0, f64::max)
-        .max(result.limit.unwrap_or(0.0));
+    let data_peak = totals.iter().copied().fold(0.0, f64::max);
+    // On a linear axis a limit far above the data would flatten it: leave it off scale.
+    let limit_shown = result.limit.filter(|&l| y_log || l <= 3.0 * data_peak);
+    let peak = data_peak.max(limit_shown.unwrap_or(0.0));
     if peak.is_nan() || peak <= 0.0 {
         return Err("the EMF is zero over the whole sweep: nothing to plot".into());
     }
@@ -145,7 +144,7 @@ pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotEr
         .map(|&v| y_of(v))
         .fold(f64::INFINITY, f64::min);
     let mut y_hi = y_of(peak);
-    if let Some(l) = result.limit {
+    if let Some(l) = limit_shown {
         y_lo = y_lo.min(y_of(l));
         y_hi = y_hi.max(y_of(l));
     }
@@ -166,7 +165,12 @@ pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotEr
         let mut chart = ChartBuilder::on(&root)
             .caption(
                 format!(
-                    "EMF induced in \"{victim_id}\" versus {title} (sweep \"{}\")",
+                    "EMF induced in \"{victim_id}\" versus {title}{} (sweep \"{}\")",
+                    if spec.worst {
+                        ", worst-case orientation"
+                    } else {
+                        ""
+                    },
                     spec.id
                 ),
                 ("sans-serif", 22),
@@ -208,7 +212,7 @@ pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotEr
                     PathElement::new(vec![(x, y), (x + 24, y)], RED_700.stroke_width(2))
                 });
         }
-        if let Some(s) = result.safe_value {
+        if let Some(s) = result.safe_value.filter(|&s| s != spec.from) {
             let xs_ = x_axis.to_plot(s);
             chart
                 .draw_series(LineSeries::new(
@@ -216,14 +220,19 @@ pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotEr
                     ORANGE_700.stroke_width(2),
                 ))
                 .map_err(err)?
-                .label(format!("safe beyond {:.2} mm", s * 1e3))
+                .label(format!("safe beyond {:.2} mm moved", s * 1e3))
                 .legend(|(x, y)| {
                     PathElement::new(vec![(x, y), (x + 24, y)], ORANGE_700.stroke_width(2))
                 });
         }
+        // EMF rises with frequency and falls with distance: keep the legend off the data.
+        let corner = match spec.vary {
+            crate::scene::sweep::Vary::Frequency => SeriesLabelPosition::UpperLeft,
+            _ => SeriesLabelPosition::UpperRight,
+        };
         chart
             .configure_series_labels()
-            .position(SeriesLabelPosition::UpperRight)
+            .position(corner)
             .background_style(WHITE.mix(0.9))
             .border_style(GREY_500)
             .label_font(("sans-serif", 15))
@@ -262,7 +271,9 @@ fn draw_lines(
         })
         .collect();
     order.sort_by(|a, b| b.1.total_cmp(&a.1));
-    for (rank, &(k, _)) in order.iter().take(8).enumerate() {
+    order.truncate(8);
+    order.sort_by_key(|o| o.0); // the legend lists the lines by frequency
+    for (rank, &(k, _)) in order.iter().enumerate() {
         let colour = LINE_COLOURS[rank % LINE_COLOURS.len()];
         let label = match result.rows.first().and_then(|r| r.lines.get(k)) {
             Some(l) if !matches!(result.spec.vary, crate::scene::sweep::Vary::Frequency) => {

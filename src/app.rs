@@ -265,6 +265,9 @@ pub fn sweep(
             Err(why) => warnings.push(format!("sweep \"{}\": {why}", r.spec.id)),
         }
     }
+    // The scene's geometry too, so the sweep can be looked at in ParaView.
+    let vtp = crate::output::vtk::scene_polydata(&scene, 0.005).map_err(Error::Run)?;
+    outputs.push((out_dir.join("scene.vtp"), vtp));
     files::ensure_dir(out_dir)?;
     let mut written = Vec::new();
     for (p, text) in &outputs {

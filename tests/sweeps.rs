@@ -1061,7 +1061,7 @@ fn sweep_writes_csv_and_svg_that_agree_with_the_json_rows() {
     assert_eq!(f(&tune[0]["value"]), 1e3);
     assert!(rel(f(&tune[1]["value"]), 1e4) < 1e-12);
     assert_eq!(f(&tune[3]["value"]), 1e6);
-    // Two files per sweep, nothing else.
+    // Two files per sweep and the scene geometry (scene.vtp), nothing else.
     let mut names: Vec<String> = std::fs::read_dir(&out)
         .unwrap()
         .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
@@ -1070,6 +1070,7 @@ fn sweep_writes_csv_and_svg_that_agree_with_the_json_rows() {
     assert_eq!(
         names,
         [
+            "scene.vtp",
             "spacing.csv",
             "spacing.svg",
             "tune.csv",

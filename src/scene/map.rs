@@ -20,9 +20,9 @@ pub enum MapLines {
 pub struct MapSpec {
     /// Unique id (names the output files).
     pub id: String,
-    /// Grid origin, m (the `min` corner, rounded to f32 as VTK image data stores it).
+    /// Grid origin, m (the `min` corner, rounded as a VTK reader will read it back).
     pub origin: Vec3,
-    /// Point spacing per axis, m (rounded to f32; 0 on a plane's flat axis).
+    /// Point spacing per axis, m (rounded the same way; 0 on a plane's flat axis).
     pub spacing: Vec3,
     /// Points per axis (1 on a plane's flat axis).
     pub points: [usize; 3],
@@ -61,6 +61,13 @@ impl MapSpec {
         }
         out
     }
+}
+
+/// The double a VTK reader gets back for `x` (m): vtkio stores origin and spacing as
+/// f32 and writes the shortest decimal text of that f32, which readers parse as a
+/// double. Computing the field at exactly that value keeps file and field in step.
+fn as_vtk_reads(x: f64) -> f64 {
+    (x as f32).to_string().parse::<f64>().unwrap_or(x)
 }
 
 /// More points than this on one map is refused before any memory estimate (1e9).
@@ -102,11 +109,11 @@ pub(crate) fn parse(t: &Table<'_, '_>, line_count: usize) -> Result<MapSpec, Inp
         }
     }
     let cells = grid_cells(t, &min, &max)?;
-    let origin = min.map(|x| x as f32 as f64);
+    let origin = min.map(as_vtk_reads);
     let mut spacing = Vec3::zeros();
     for a in 0..3 {
         if cells[a] > 0 {
-            spacing[a] = ((max[a] - min[a]) / cells[a] as f64) as f32 as f64;
+            spacing[a] = as_vtk_reads((max[a] - min[a]) / cells[a] as f64);
         }
     }
     let lines = match t.get("line") {

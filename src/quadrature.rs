@@ -6,8 +6,8 @@ use std::sync::OnceLock;
 /// Points per Gauss–Legendre panel; exact for polynomials of degree 2·ORDER − 1.
 pub const ORDER: usize = 6;
 
-/// Deepest halving of one first-pass panel (2^-30 of its length).
-const MAX_DEPTH: u32 = 30;
+/// Deepest halving of one first-pass panel (2^-40 of its length).
+const MAX_DEPTH: u32 = 40;
 
 /// Most panels one first-pass panel may be split into: bounds the work when rounding
 /// noise, not the integrand, keeps two estimates apart.

@@ -42,6 +42,32 @@ pub trait FieldSource: Send + Sync {
         let a = self.a_per_amp(r);
         (a, a.norm())
     }
+
+    /// A sphere (centre m, radius m) holding every conductor, if the source knows one:
+    /// outside it the fields are analytic, which lets quadrature skip error checks far
+    /// away.
+    fn bounding_sphere(&self) -> Option<(Vec3, f64)> {
+        None
+    }
+}
+
+/// The smallest-ish sphere (centre, radius; m) around `points`: centred on their
+/// bounding box.
+pub fn sphere_around<'a, I: Iterator<Item = &'a Vec3> + Clone>(points: I) -> Option<(Vec3, f64)> {
+    let mut lo = Vec3::repeat(f64::INFINITY);
+    let mut hi = Vec3::repeat(f64::NEG_INFINITY);
+    let mut any = false;
+    for p in points.clone() {
+        lo = lo.inf(p);
+        hi = hi.sup(p);
+        any = true;
+    }
+    if !any {
+        return None;
+    }
+    let c = (lo + hi) / 2.0;
+    let r = points.map(|p| (p - c).norm()).fold(0.0, f64::max);
+    Some((c, r))
 }
 
 /// The conductors of one source: filament polylines and point dipoles, all carrying the
@@ -84,6 +110,19 @@ impl Conductors {
 }
 
 impl FieldSource for Conductors {
+    fn bounding_sphere(&self) -> Option<(Vec3, f64)> {
+        let verts = self.wires.iter().flat_map(|w| w.vertices.iter());
+        let centres = self.dipoles.iter().map(|d| &d.position);
+        let (c, r) = sphere_around(verts.chain(centres))?;
+        let pad = self
+            .wires
+            .iter()
+            .map(|w| w.wire_radius)
+            .chain(self.dipoles.iter().map(|d| d.radius))
+            .fold(0.0, f64::max);
+        Some((c, r + pad))
+    }
+
     fn b_per_amp(&self, r: &Vec3) -> Vec3 {
         let mut b = Vec3::zeros();
         for w in &self.wires {

@@ -104,6 +104,14 @@ impl Edge {
         }
     }
 
+    /// A sphere (centre, radius; m) holding the edge.
+    pub fn bounding_sphere(&self) -> (Vec3, f64) {
+        match *self {
+            Edge::Line { a, b } => ((a + b) / 2.0, (b - a).norm() / 2.0),
+            Edge::Arc { centre, radius, .. } => (centre, radius),
+        }
+    }
+
     /// Number of first-pass quadrature panels: one per 1/8 of a turn for arcs.
     pub(crate) fn initial_panels(&self) -> usize {
         match *self {

@@ -2,6 +2,7 @@
 
 use crate::Scene;
 use crate::coupling::VictimReport;
+use crate::field::Vec3;
 use crate::probe::ProbePoint;
 use crate::units::{format_area, format_si};
 use std::fmt::Write;
@@ -44,12 +45,14 @@ pub fn check(scene: &Scene, lines_hz: &[f64]) -> String {
         let m = c.dipole_moment_per_amp();
         let _ = writeln!(
             out,
-            "  dipole moment {} per A ({:.3e} A·m²/A along [{:.3}, {:.3}, {:.3}])",
+            "  dipole moment {} per A ({:.3e} A·m²/A along {})",
             si(m.norm(), "A·m²"),
             m.norm(),
-            safe_unit(m.x, m.norm()),
-            safe_unit(m.y, m.norm()),
-            safe_unit(m.z, m.norm())
+            fmt_dir(&Vec3::new(
+                safe_unit(m.x, m.norm()),
+                safe_unit(m.y, m.norm()),
+                safe_unit(m.z, m.norm())
+            ))
         );
         if let Some((at, field)) = s.calibration {
             let i_rms = (s.lines.iter().map(|l| l.current.norm_sqr()).sum::<f64>() / 2.0).sqrt();
@@ -210,6 +213,12 @@ fn fmt_point(p: &crate::field::Vec3) -> String {
     format!("({:.6}, {:.6}, {:.6}) m", p.x, p.y, p.z)
 }
 
+/// A unit direction as `[x, y, z]` to three decimals, without "-0.000".
+fn fmt_dir(d: &Vec3) -> String {
+    let c = |x: f64| if x.abs() < 5e-4 { 0.0 } else { x };
+    format!("[{:.3}, {:.3}, {:.3}]", c(d.x), c(d.y), c(d.z))
+}
+
 fn safe_unit(c: f64, n: f64) -> f64 {
     if n > 0.0 { c / n } else { 0.0 }
 }
@@ -291,7 +300,7 @@ pub fn sweeps(scene: &Scene, results: &[crate::sweep::SweepResult], written: &[S
         }
         if let Some(b) = r.best_at_placed {
             let gain = crate::coupling::margin_db(r.placed_total, b.total_rms);
-            let axis = format!("[{:.3}, {:.3}, {:.3}]", b.normal.x, b.normal.y, b.normal.z);
+            let axis = fmt_dir(&b.normal);
             let _ = if gain > 100.0 {
                 writeln!(
                     out,

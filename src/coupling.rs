@@ -51,8 +51,9 @@ pub fn flux_per_amp<S: FieldSource + ?Sized>(
 /// conductor is far from the edge compared with a panel's length. The integrand is then
 /// analytic in a Bernstein ellipse about each panel that reaches out to the source, and
 /// the n-point rule's error falls like (h / 4g)^(2n) for panel length h and gap g
-/// (Trefethen, "Approximation Theory and Approximation Practice", ch. 19); a gap of
-/// h/2·(100/tolerance)^(1/(2n)) keeps it a hundredth of the tolerance.
+/// (Trefethen, "Approximation Theory and Approximation Practice", ch. 19). The fewest
+/// points n (up to the full rule) that bring the estimate under a hundredth of the
+/// tolerance, at twice the gap the estimate needs for the full rule, are used.
 fn far_edge<F: Fn(f64) -> (f64, f64) + Sync>(
     f: &F,
     edge: &Edge,
@@ -64,18 +65,26 @@ fn far_edge<F: Fn(f64) -> (f64, f64) + Sync>(
     let (e_centre, e_radius) = edge.bounding_sphere();
     let gap = (e_centre - centre).norm() - radius - e_radius;
     let h = edge.length() / panels as f64;
-    let needed = 0.5 * h * (100.0 / tolerance).powf(1.0 / (2.0 * crate::quadrature::ORDER as f64));
-    if gap.is_nan() || gap <= needed {
+    let order = crate::quadrature::ORDER as f64;
+    let target = 100.0 / tolerance;
+    // Half the gap counts, a margin of 2 on the estimate's distance.
+    let ratio = 4.0 * (gap / 2.0) / h;
+    if gap.is_nan() || ratio <= target.powf(1.0 / (2.0 * order)) {
         return None;
     }
+    let points = (target.ln() / (2.0 * ratio.ln())).ceil().max(2.0) as usize;
     let mut out = Integral {
         value: 0.0,
         magnitude: 0.0,
         converged: true,
     };
     for k in 0..panels {
-        let (v, _) =
-            crate::quadrature::panel(f, k as f64 / panels as f64, (k + 1) as f64 / panels as f64);
+        let v = crate::quadrature::panel_with(
+            f,
+            k as f64 / panels as f64,
+            (k + 1) as f64 / panels as f64,
+            points,
+        );
         out.value += v;
         out.magnitude += v.abs();
     }

@@ -66,6 +66,24 @@ fn rule() -> &'static (Vec<f64>, Vec<f64>) {
     RULE.get_or_init(|| gauss_legendre(ORDER))
 }
 
+/// Gauss–Legendre rules of 1 to ORDER points, computed once.
+fn rules() -> &'static [(Vec<f64>, Vec<f64>)] {
+    static RULES: OnceLock<Vec<(Vec<f64>, Vec<f64>)>> = OnceLock::new();
+    RULES.get_or_init(|| (1..=ORDER).map(gauss_legendre).collect())
+}
+
+/// ∫ f over [t0, t1] with one `points`-point Gauss–Legendre panel (1 ≤ points ≤ ORDER),
+/// returning only the value.
+pub fn panel_with<F: Fn(f64) -> (f64, f64)>(f: &F, t0: f64, t1: f64, points: usize) -> f64 {
+    let (x, w) = &rules()[points.clamp(1, ORDER) - 1];
+    let (mid, half) = ((t0 + t1) / 2.0, (t1 - t0) / 2.0);
+    x.iter()
+        .zip(w)
+        .map(|(xi, wi)| wi * f(mid + half * xi).0)
+        .sum::<f64>()
+        * half
+}
+
 /// ∫ f over [t0, t1] with one Gauss–Legendre panel. `f` returns the integrand and its
 /// gross magnitude (the sum of the absolute values of whatever it adds up), and so does
 /// this: (∫ f, ∫ gross).

@@ -162,34 +162,16 @@ pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotEr
     {
         let root = SVGBackend::with_string(&mut svg, SIZE).into_drawing_area();
         root.fill(&WHITE).map_err(err)?;
-        let mut chart = ChartBuilder::on(&root)
-            .caption(
-                format!(
-                    "EMF induced in \"{victim_id}\" versus {title}{} (sweep \"{}\")",
-                    if spec.worst {
-                        ", worst-case orientation"
-                    } else {
-                        ""
-                    },
-                    spec.id
-                ),
-                ("sans-serif", 22),
-            )
-            .margin(16)
-            .x_label_area_size(48)
-            .y_label_area_size(86)
-            .build_cartesian_2d(x0..x1, y0..y1)
-            .map_err(err)?;
-        chart
-            .configure_mesh()
-            .x_desc(x_axis.label.as_str())
-            .y_desc(y_axis.label.as_str())
-            .x_label_formatter(&|v| x_axis.text(*v))
-            .y_label_formatter(&|v| y_axis.text(*v))
-            .light_line_style(WHITE.mix(0.0))
-            .label_style(("sans-serif", 15))
-            .draw()
-            .map_err(err)?;
+        let caption = format!(
+            "EMF induced in \"{victim_id}\" versus {title}{} (sweep \"{}\")",
+            if spec.worst {
+                ", worst-case orientation"
+            } else {
+                ""
+            },
+            spec.id
+        );
+        let mut chart = axes_chart(&root, caption, (&x_axis, &y_axis), (x0, x1), (y0, y1))?;
         draw_lines(&mut chart, result, &xs, &y_of)?;
         chart
             .draw_series(LineSeries::new(
@@ -241,6 +223,34 @@ pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotEr
         root.present().map_err(err)?;
     }
     Ok(svg)
+}
+
+/// A chart with our axes, labels and mesh on `root`.
+fn axes_chart<'a, 'b>(
+    root: &'a DrawingArea<SVGBackend<'b>, plotters::coord::Shift>,
+    caption: String,
+    (x_axis, y_axis): (&Axis, &Axis),
+    (x0, x1): (f64, f64),
+    (y0, y1): (f64, f64),
+) -> Result<Chart<'a, 'b>, PlotError> {
+    let mut chart = ChartBuilder::on(root)
+        .caption(caption, ("sans-serif", 22))
+        .margin(16)
+        .x_label_area_size(48)
+        .y_label_area_size(86)
+        .build_cartesian_2d(x0..x1, y0..y1)
+        .map_err(err)?;
+    chart
+        .configure_mesh()
+        .x_desc(x_axis.label.as_str())
+        .y_desc(y_axis.label.as_str())
+        .x_label_formatter(&|v| x_axis.text(*v))
+        .y_label_formatter(&|v| y_axis.text(*v))
+        .light_line_style(WHITE.mix(0.0))
+        .label_style(("sans-serif", 15))
+        .draw()
+        .map_err(err)?;
+    Ok(chart)
 }
 
 type Chart<'a, 'b> = ChartContext<
@@ -347,26 +357,8 @@ pub fn spectrum_svg(
     {
         let root = SVGBackend::with_string(&mut svg, SIZE).into_drawing_area();
         root.fill(&WHITE).map_err(err)?;
-        let mut chart = ChartBuilder::on(&root)
-            .caption(
-                format!("EMF spectrum induced in \"{victim_id}\""),
-                ("sans-serif", 22),
-            )
-            .margin(16)
-            .x_label_area_size(48)
-            .y_label_area_size(86)
-            .build_cartesian_2d(x0..x1, y0..y1)
-            .map_err(err)?;
-        chart
-            .configure_mesh()
-            .x_desc(x_axis.label.as_str())
-            .y_desc(y_axis.label.as_str())
-            .x_label_formatter(&|v| x_axis.text(*v))
-            .y_label_formatter(&|v| y_axis.text(*v))
-            .light_line_style(WHITE.mix(0.0))
-            .label_style(("sans-serif", 15))
-            .draw()
-            .map_err(err)?;
+        let caption = format!("EMF spectrum induced in \"{victim_id}\"");
+        let mut chart = axes_chart(&root, caption, (&x_axis, &y_axis), (x0, x1), (y0, y1))?;
         for &(x, y) in &pts {
             chart
                 .draw_series(LineSeries::new(

@@ -60,6 +60,84 @@ const LINE_COLOURS: [RGBColor; 8] = [
     plotters::style::full_palette::GREY_700,
 ];
 
+/// A plotted axis (in log10 units on log axes) that places its own ticks: 1, 2 and 5
+/// of each decade on a log axis spanning up to three decades, whole decades beyond
+/// that; 1-2-5 steps on a linear axis.
+#[derive(Clone)]
+struct Ticked {
+    lo: f64,
+    hi: f64,
+    ticks: Vec<f64>,
+}
+
+impl Ticked {
+    fn new(lo: f64, hi: f64, log: bool) -> Self {
+        let ticks = if log {
+            log_ticks(lo, hi)
+        } else {
+            linear_ticks(lo, hi)
+        };
+        Ticked { lo, hi, ticks }
+    }
+}
+
+fn log_ticks(lo: f64, hi: f64) -> Vec<f64> {
+    let span = hi - lo;
+    let mantissas: &[f64] = if span <= 3.2 {
+        &[1.0, 2.0, 5.0]
+    } else {
+        &[1.0]
+    };
+    let every = if span > 9.0 { 2 } else { 1 };
+    let mut out = Vec::new();
+    for k in (lo.floor() as i64)..=(hi.ceil() as i64) {
+        if k.rem_euclid(every) != 0 {
+            continue;
+        }
+        for m in mantissas {
+            let t = k as f64 + m.log10();
+            if t >= lo && t <= hi {
+                out.push(t);
+            }
+        }
+    }
+    out
+}
+
+fn linear_ticks(lo: f64, hi: f64) -> Vec<f64> {
+    let raw = (hi - lo) / 10.0;
+    if raw.is_nan() || raw <= 0.0 || !raw.is_finite() {
+        return vec![lo];
+    }
+    let base = 10f64.powf(raw.log10().floor());
+    let step = [1.0, 2.0, 5.0, 10.0]
+        .iter()
+        .map(|m| m * base)
+        .find(|st| *st >= raw)
+        .unwrap_or(10.0 * base);
+    let first = (lo / step).ceil() as i64;
+    let last = (hi / step).floor() as i64;
+    (first..=last).map(|k| k as f64 * step).collect()
+}
+
+impl plotters::coord::ranged1d::Ranged for Ticked {
+    type FormatOption = plotters::coord::ranged1d::DefaultFormatting;
+    type ValueType = f64;
+
+    fn map(&self, value: &f64, limit: (i32, i32)) -> i32 {
+        let t = (value - self.lo) / (self.hi - self.lo);
+        limit.0 + (t * f64::from(limit.1 - limit.0)).round() as i32
+    }
+
+    fn key_points<H: plotters::coord::ranged1d::KeyPointHint>(&self, _hint: H) -> Vec<f64> {
+        self.ticks.clone()
+    }
+
+    fn range(&self) -> std::ops::Range<f64> {
+        self.lo..self.hi
+    }
+}
+
 fn padded(lo: f64, hi: f64, log: bool) -> (f64, f64) {
     let (lo, hi) = if lo == hi {
         (lo - 1.0, hi + 1.0)
@@ -238,7 +316,10 @@ fn axes_chart<'a, 'b>(
         .margin(16)
         .x_label_area_size(48)
         .y_label_area_size(86)
-        .build_cartesian_2d(x0..x1, y0..y1)
+        .build_cartesian_2d(
+            Ticked::new(x0, x1, x_axis.log),
+            Ticked::new(y0, y1, y_axis.log),
+        )
         .map_err(err)?;
     chart
         .configure_mesh()
@@ -253,11 +334,7 @@ fn axes_chart<'a, 'b>(
     Ok(chart)
 }
 
-type Chart<'a, 'b> = ChartContext<
-    'a,
-    SVGBackend<'b>,
-    Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>,
->;
+type Chart<'a, 'b> = ChartContext<'a, SVGBackend<'b>, Cartesian2d<Ticked, Ticked>>;
 
 /// Each spectral line's EMF as a thin line (up to eight lines, the largest ones).
 fn draw_lines(

@@ -151,3 +151,73 @@ fn segment_logs<F: Fn(usize, f64, f64) -> f64>(
     }
     (sum, gross)
 }
+
+/// Σ of the segments' B (without μ0/4π) at `r` (m) for squared wire radius `a2` (m²):
+/// 2L(Ri+Rf)/(Ri Rf u (Ri+Rf+L)) · ê × (r − a) with u = Ri+Rf−L, four segments at a
+/// time. `careful(k, r_i, r_f)` gives segment `k`'s B for points near its line (inside
+/// the wire radius, or where u loses digits).
+pub(crate) fn field_sum<F: Fn(usize, f64, f64) -> Vec3>(
+    soa: &Soa,
+    r: &Vec3,
+    a2: f64,
+    careful: F,
+) -> Vec3 {
+    DISTANCES.with(|buf| {
+        let mut dist = buf.borrow_mut();
+        vertex_distances(soa, r, &mut dist);
+        segment_fields(soa, r, &dist, a2, careful)
+    })
+}
+
+fn segment_fields<F: Fn(usize, f64, f64) -> Vec3>(
+    soa: &Soa,
+    r: &Vec3,
+    dist: &[f64],
+    a2: f64,
+    careful: F,
+) -> Vec3 {
+    let m = soa.segments();
+    let (rx, ry, rz) = (f64x4::splat(r.x), f64x4::splat(r.y), f64x4::splat(r.z));
+    let (mut bx, mut by, mut bz) = (f64x4::ZERO, f64x4::ZERO, f64x4::ZERO);
+    let (two, hundredth, wire2) = (f64x4::splat(2.0), f64x4::splat(0.01), f64x4::splat(a2));
+    let groups = m / 4;
+    let mut extra = Vec3::zeros();
+    for g in 0..groups {
+        let k = 4 * g;
+        let (dx, dy, dz) = (
+            rx - load(&soa.x, k),
+            ry - load(&soa.y, k),
+            rz - load(&soa.z, k),
+        );
+        let (ex, ey, ez) = (load(&soa.ex, k), load(&soa.ey, k), load(&soa.ez, k));
+        // ê × (r − a)
+        let cx = ey * dz - ez * dy;
+        let cy = ez * dx - ex * dz;
+        let cz = ex * dy - ey * dx;
+        let rho2 = cx * cx + cy * cy + cz * cz;
+        let (ri, rf, l) = (load(dist, k), load(dist, k + 1), load(&soa.len, k));
+        let s = ri + rf;
+        let u = s - l;
+        let safe = rho2.simd_ge(wire2) & u.simd_gt(l * hundredth);
+        let mut factor = two * l * s / (ri * rf * u * (s + l));
+        if !safe.all() {
+            let mut lanes = factor.to_array();
+            let ok = safe.to_bitmask();
+            for (lane, value) in lanes.iter_mut().enumerate() {
+                if ok & (1 << lane) == 0 {
+                    *value = 0.0;
+                    extra += careful(k + lane, dist[k + lane], dist[k + lane + 1]);
+                }
+            }
+            factor = f64x4::from(lanes);
+        }
+        bx += cx * factor;
+        by += cy * factor;
+        bz += cz * factor;
+    }
+    let mut sum = Vec3::new(bx.reduce_add(), by.reduce_add(), bz.reduce_add()) + extra;
+    for k in 4 * groups..m {
+        sum += careful(k, dist[k], dist[k + 1]);
+    }
+    sum
+}

@@ -12,7 +12,7 @@
 //! meet there. Within the wire radius the field of a round conductor carrying uniform
 //! current is used instead, so no point gives NaN or infinity.
 
-use super::kernel::{Soa, log_sum};
+use super::kernel::{Soa, field_sum, log_sum};
 use super::{FieldSource, MU0_OVER_4PI, Vec3};
 
 /// A filament path carrying `weight` amperes per ampere of source current.
@@ -95,6 +95,14 @@ pub(crate) fn distance_to_segment(r: &Vec3, a: &Vec3, b: &Vec3) -> f64 {
 impl FieldSource for Polyline {
     fn b_per_amp(&self, r: &Vec3) -> Vec3 {
         let a2 = self.wire_radius * self.wire_radius;
+        if self.soa.segments() == self.segment_count() {
+            let careful = |seg: usize, r_i: f64, r_f: f64| {
+                let d_i = r - self.vertices[seg];
+                let d_f = r - self.vertices[seg + 1];
+                segment_b(&d_i, r_i, &d_f, r_f, a2)
+            };
+            return field_sum(&self.soa, r, a2, careful) * (MU0_OVER_4PI * self.weight);
+        }
         let mut sum = Vec3::zeros();
         let mut iter = self.vertices.iter();
         let Some(first) = iter.next() else {

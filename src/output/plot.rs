@@ -260,17 +260,12 @@ pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotEr
             .label("total (all lines)")
             .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 24, y)], BLUE_700.stroke_width(3)));
         if let Some(l) = result.limit {
-            let yl = y_of(l);
-            chart
-                .draw_series(LineSeries::new(
-                    vec![(x0, yl), (x1, yl)],
-                    RED_700.stroke_width(2),
-                ))
-                .map_err(err)?
-                .label(format!("limit {}", format_si(l, "V", 3)))
-                .legend(|(x, y)| {
-                    PathElement::new(vec![(x, y), (x + 24, y)], RED_700.stroke_width(2))
-                });
+            let label = if limit_shown.is_some() {
+                format!("limit {}", format_si(l, "V", 3))
+            } else {
+                format!("limit {} (above the plotted range)", format_si(l, "V", 3))
+            };
+            limit_line(&mut chart, (x0, x1), y_of(l), label)?;
         }
         if let Some(s) = result.safe_value.filter(|&s| s != spec.from) {
             let xs_ = x_axis.to_plot(s);
@@ -335,6 +330,24 @@ fn axes_chart<'a, 'b>(
 }
 
 type Chart<'a, 'b> = ChartContext<'a, SVGBackend<'b>, Cartesian2d<Ticked, Ticked>>;
+
+/// The limit as a red horizontal line at plotted height `y`, with its legend entry.
+fn limit_line(
+    chart: &mut Chart<'_, '_>,
+    (x0, x1): (f64, f64),
+    y: f64,
+    label: String,
+) -> Result<(), PlotError> {
+    chart
+        .draw_series(LineSeries::new(
+            vec![(x0, y), (x1, y)],
+            RED_700.stroke_width(2),
+        ))
+        .map_err(err)?
+        .label(label)
+        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 24, y)], RED_700.stroke_width(2)));
+    Ok(())
+}
 
 /// Each spectral line's EMF as a thin line (up to eight lines, the largest ones).
 fn draw_lines(
@@ -448,17 +461,8 @@ pub fn spectrum_svg(
             .draw_series(pts.iter().map(|&p| Circle::new(p, 4, BLUE_700.filled())))
             .map_err(err)?;
         if let Some(l) = limit {
-            let yl = y_axis.to_plot(l);
-            chart
-                .draw_series(LineSeries::new(
-                    vec![(x0, yl), (x1, yl)],
-                    RED_700.stroke_width(2),
-                ))
-                .map_err(err)?
-                .label(format!("limit on the total {}", format_si(l, "V", 3)))
-                .legend(|(x, y)| {
-                    PathElement::new(vec![(x, y), (x + 24, y)], RED_700.stroke_width(2))
-                });
+            let label = format!("limit on the total {}", format_si(l, "V", 3));
+            limit_line(&mut chart, (x0, x1), y_axis.to_plot(l), label)?;
             chart
                 .configure_series_labels()
                 .position(SeriesLabelPosition::UpperRight)

@@ -171,6 +171,22 @@ impl<'a, 'i> Table<'a, 'i> {
         ))
     }
 
+    /// The value of `name`, which must be one of `options`; the first option when the
+    /// key is absent.
+    pub fn one_of(&self, name: &str, options: &[&'static str]) -> Result<&'static str, InputError> {
+        let Some(v) = self.get(name) else {
+            return Ok(options[0]);
+        };
+        let text = v.string()?;
+        options.iter().copied().find(|o| *o == text).ok_or_else(|| {
+            let list: Vec<String> = options.iter().map(|o| format!("\"{o}\"")).collect();
+            v.error(format!(
+                "unknown {name} \"{text}\"; expected {}",
+                list.join(" or ")
+            ))
+        })
+    }
+
     /// Whether `name` is present (does not count as read).
     pub fn has(&self, name: &str) -> bool {
         self.table.contains_key(name)

@@ -119,16 +119,12 @@ pub(crate) fn parse(t: &Table<'_, '_>, victims: &[Victim]) -> Result<SweepSpec, 
     if steps > MAX_STEPS {
         return Err(sv.error(format!("{steps} steps is more than {MAX_STEPS}")));
     }
-    let log = match t.get("scale") {
-        None => !matches!(vary, Vary::Angle(_)),
-        Some(v) => match v.string()? {
-            "log" => true,
-            "linear" => false,
-            other => {
-                return Err(v.error(format!("unknown scale \"{other}\"; expected log or linear")));
-            }
-        },
+    let default_scale = if matches!(vary, Vary::Angle(_)) {
+        ["linear", "log"]
+    } else {
+        ["log", "linear"]
     };
+    let log = t.one_of("scale", &default_scale)? == "log";
     if log && (from <= 0.0 || to <= 0.0) {
         return Err(
             fv.error("a log scale needs `from` and `to` greater than zero; use scale = \"linear\"")
@@ -137,18 +133,7 @@ pub(crate) fn parse(t: &Table<'_, '_>, victims: &[Victim]) -> Result<SweepSpec, 
     if matches!(vary, Vary::Frequency) && (from <= 0.0 || to <= 0.0) {
         return Err(fv.error("frequencies must be greater than zero"));
     }
-    let worst = match t.get("orientation") {
-        None => false,
-        Some(v) => match v.string()? {
-            "as-placed" => false,
-            "worst" => true,
-            other => {
-                return Err(v.error(format!(
-                    "unknown orientation \"{other}\"; expected as-placed or worst"
-                )));
-            }
-        },
-    };
+    let worst = t.one_of("orientation", &["as-placed", "worst"])? == "worst";
     let context = format!("a sweep of {}", vary.name());
     t.finish(&["along", "about"], &context)?;
     Ok(SweepSpec {

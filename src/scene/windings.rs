@@ -88,18 +88,7 @@ fn parse_helix(
     let turns = turns_real(t)?;
     check_wire(&rv, radius, wire_radius)?;
     check_pitch(&lv, len / turns, wire_radius)?;
-    let axial = match t.get("leads") {
-        None => true,
-        Some(v) => match v.string()? {
-            "axial" => true,
-            "none" => false,
-            other => {
-                return Err(v.error(format!(
-                    "unknown leads \"{other}\"; expected \"axial\" or \"none\""
-                )));
-            }
-        },
-    };
+    let axial = t.one_of("leads", &["axial", "none"])? == "axial";
     if !axial {
         warnings.push(
             "a helix with leads = \"none\" is an open path: its return is not modelled".into(),
@@ -166,18 +155,7 @@ fn parse_spiral(
         )));
     }
     check_pitch(&ov, (outer - inner) / turns, wire_radius)?;
-    let round = match t.get("shape") {
-        None => true,
-        Some(v) => match v.string()? {
-            "round" => true,
-            "square" => false,
-            other => {
-                return Err(v.error(format!(
-                    "unknown shape \"{other}\"; expected \"round\" or \"square\""
-                )));
-            }
-        },
-    };
+    let round = t.one_of("shape", &["round", "square"])? == "round";
     Ok(if round {
         round_spiral(frame, inner, outer, turns, ctx.tolerance, wire_radius)
     } else {

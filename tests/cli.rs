@@ -4,13 +4,10 @@
 
 use serde_json::Value;
 use std::path::PathBuf;
-use std::process::{Command, Output};
+mod cli_support;
+use cli_support::{bin, run, stdout_json};
 
 const MU0: f64 = 1.256_637_062_12e-6; // CODATA 2018
-
-fn bin() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_strayflux"))
-}
 
 /// Writes `text` to a fresh file named `name` in the test's scratch folder.
 fn scene(name: &str, text: &str) -> PathBuf {
@@ -19,20 +16,6 @@ fn scene(name: &str, text: &str) -> PathBuf {
     let path = dir.join(name);
     std::fs::write(&path, text).unwrap();
     path
-}
-
-fn run(args: &[&str]) -> Output {
-    bin().args(args).output().expect("runs")
-}
-
-fn stdout_json(out: &Output) -> Value {
-    assert!(
-        out.status.success(),
-        "exit {:?}, stderr: {}",
-        out.status.code(),
-        String::from_utf8_lossy(&out.stderr)
-    );
-    serde_json::from_slice(&out.stdout).expect("stdout is one JSON document")
 }
 
 /// Complete elliptic integrals K(m), E(m) of parameter m = k² from the `ellip` crate

@@ -6,14 +6,11 @@
 mod common;
 
 use common::{loop_b, rel};
-use serde_json::Value;
 use std::path::PathBuf;
-use std::process::{Command, Output};
-use strayflux::field::Vec3;
 
-fn bin() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_strayflux"))
-}
+use strayflux::field::Vec3;
+mod cli_support;
+use cli_support::{bin, run, stdout_json};
 
 /// The test's scratch folder.
 fn scratch() -> PathBuf {
@@ -30,20 +27,6 @@ fn write(name: &str, text: &str) -> PathBuf {
     }
     std::fs::write(&path, text).unwrap();
     path
-}
-
-fn run(args: &[&str]) -> Output {
-    bin().args(args).output().expect("runs")
-}
-
-fn stdout_json(out: &Output) -> Value {
-    assert!(
-        out.status.success(),
-        "exit {:?}, stderr: {}",
-        out.status.code(),
-        String::from_utf8_lossy(&out.stderr)
-    );
-    serde_json::from_slice(&out.stdout).expect("stdout is one JSON document")
 }
 
 /// One-based line and column (in characters) where `needle` starts in `text`, plus

@@ -17,21 +17,19 @@ use rayon::prelude::*;
 use serde_json::Value;
 use std::f64::consts::{PI, SQRT_2, TAU};
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
+
 use strayflux::Scene;
 use strayflux::field::Vec3;
 use strayflux::orientation::{search, small_loop_matrix};
 use strayflux::scene::Victim;
 use strayflux::spectrum::Line;
 use strayflux::sweep::{run, victim_emf};
+mod cli_support;
+use cli_support::{run as run_bin, stdout_json as ok_json};
 
 // ---------------------------------------------------------------------------------
 // Helpers
 // ---------------------------------------------------------------------------------
-
-fn bin() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_strayflux"))
-}
 
 /// A fresh, empty scratch folder for one test.
 fn scratch(test: &str) -> PathBuf {
@@ -47,20 +45,6 @@ fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
     let p = dir.join(name);
     std::fs::write(&p, text).unwrap();
     p
-}
-
-fn run_bin(args: &[&str]) -> Output {
-    bin().args(args).output().expect("the binary runs")
-}
-
-fn ok_json(out: &Output) -> Value {
-    assert!(
-        out.status.success(),
-        "exit {:?}, stderr: {}",
-        out.status.code(),
-        String::from_utf8_lossy(&out.stderr)
-    );
-    serde_json::from_slice(&out.stdout).expect("stdout is one JSON document")
 }
 
 /// `sweep SCENE --out DIR --json`.

@@ -91,7 +91,7 @@ fn sweep(c: &mut Criterion) {
     let mut g = c.benchmark_group("sweep");
     g.sample_size(10);
     g.bench_function("1000steps-2000seg", |b| {
-        b.iter(|| black_box(strayflux::sweep::run(&scene, &scene.sweeps[0], &|| {})))
+        b.iter(|| black_box(strayflux::sweep::run(&scene, &scene.sweeps[0], &|| {}).ok()))
     });
     g.finish();
 }

@@ -52,7 +52,8 @@ pub fn couple(
         .victims
         .iter()
         .map(|v| couple_victim(&scene, v))
-        .collect();
+        .collect::<Result<_, String>>()
+        .map_err(Error::Usage)?;
     let mut warnings = scene.warnings.clone();
     for r in &reports {
         for s in r.sources.iter().filter(|s| !s.converged) {
@@ -119,7 +120,7 @@ pub fn probe_points(
         check_not_on_wire(&scene, p)?;
         warnings.extend(scene.far_point_warning(&format!("probe point {p:?}"), p));
     }
-    let result = probe(&scene, &points);
+    let result = probe(&scene, &points).map_err(Error::Usage)?;
     let stdout = if as_json {
         json::probe(&result)
     } else {
@@ -251,7 +252,8 @@ pub fn sweep(
     let results: Vec<crate::sweep::SweepResult> = chosen
         .iter()
         .map(|s| crate::sweep::run(&scene, s, &tick))
-        .collect();
+        .collect::<Result<_, String>>()
+        .map_err(Error::Usage)?;
     let mut outputs = Vec::new();
     let mut warnings = scene.warnings.clone();
     for r in &results {

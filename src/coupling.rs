@@ -5,9 +5,14 @@
 //! E_k = −j ω_k M I_k (peak values; rms = peak/√2), positive in the right-handed sense
 //! about the victim's axis.
 
+use crate::Scene;
 use crate::field::FieldSource;
 use crate::geometry::Edge;
 use crate::quadrature::{Integral, integrate_unit};
+use crate::scene::{Source, Victim};
+use crate::shield::enclosure::Enclosure;
+use crate::shield::spectral::Path;
+use crate::shield::{SHIELDING_CAP_DB, Scattered};
 use crate::spectrum::{Line, same_frequency};
 use num_complex::Complex64;
 use std::f64::consts::{SQRT_2, TAU};
@@ -142,6 +147,108 @@ impl SourceCoupling {
             converged,
         }
     }
+
+    /// Couple a source with lines `lines` through `model`, for a victim of `turns`.
+    pub fn from_model(id: &str, turns: f64, model: &PairModel, lines: &[Line]) -> Self {
+        let mut out = SourceCoupling::new(id, turns * model.flux, lines, model.converged);
+        if model.is_shielded() {
+            for l in &mut out.lines {
+                let phi = model.shielded_flux(l.frequency);
+                let free = l.emf;
+                l.emf = -Complex64::i() * (TAU * l.frequency) * turns * phi * l.current;
+                l.shielding_db = shielding_db(free.norm(), l.emf.norm());
+            }
+        }
+        out
+    }
+}
+
+/// 20·log10(free / shielded), dB, within ±[`SHIELDING_CAP_DB`]; 0 when both are zero.
+pub fn shielding_db(free: f64, shielded: f64) -> f64 {
+    if free == 0.0 && shielded == 0.0 {
+        return 0.0;
+    }
+    let db = 20.0 * (free / shielded).log10();
+    if db.is_nan() {
+        0.0
+    } else {
+        db.clamp(-SHIELDING_CAP_DB, SHIELDING_CAP_DB)
+    }
+}
+
+/// How one source reaches one victim: the free-space flux and what the scene's
+/// shields do to it.
+#[derive(Clone, Debug)]
+pub struct PairModel {
+    /// Free-space flux through one turn per ampere, Wb/A.
+    pub flux: f64,
+    /// Whether the free-space flux integral met the tolerance.
+    pub converged: bool,
+    /// The sheets' reflected or transmitted part, if the scene has sheets.
+    pub scattered: Option<Scattered>,
+    /// Enclosures between the source and the victim.
+    pub enclosures: Vec<Enclosure>,
+}
+
+impl PairModel {
+    /// Builds the model of `source` coupling into `victim` in `scene`.
+    pub fn new(scene: &Scene, source: &Source, victim: &Victim) -> Result<PairModel, String> {
+        let phi = flux_per_amp(&source.conductors, &victim.edges, scene.tolerance);
+        let src_points = crate::scene::source_points(source);
+        let scattered = match &scene.barrier {
+            None => None,
+            Some(b) => {
+                let vpts = crate::scene::victim_points(&victim.edges);
+                let s_side =
+                    crate::scene::side_of(b, &src_points, &format!("source \"{}\"", source.id))?;
+                let v_side = crate::scene::side_of(b, &vpts, &format!("victim \"{}\"", victim.id))?;
+                Some(
+                    crate::shield::flux_model(
+                        b,
+                        &source.conductors,
+                        s_side,
+                        &victim.edges,
+                        &vpts,
+                        v_side,
+                        scene.tolerance,
+                    )
+                    .map_err(|why| format!("victim \"{}\" {why}", victim.id))?,
+                )
+            }
+        };
+        let enclosures =
+            crate::shield::enclosures_between(&scene.enclosures, &victim.id, &src_points)
+                .into_iter()
+                .cloned()
+                .collect();
+        Ok(PairModel {
+            flux: phi.value,
+            converged: phi.converged,
+            scattered,
+            enclosures,
+        })
+    }
+
+    /// Whether any shield acts on this pair.
+    pub fn is_shielded(&self) -> bool {
+        self.scattered.is_some() || !self.enclosures.is_empty()
+    }
+
+    /// Flux through one turn per ampere with the shields in place at `frequency` (Hz),
+    /// Wb/A (complex: the shields shift its phase).
+    pub fn shielded_flux(&self, frequency: f64) -> Complex64 {
+        let mut phi = match &self.scattered {
+            None => Complex64::new(self.flux, 0.0),
+            Some(s) => match s.path {
+                Path::Reflected => self.flux + s.at(frequency),
+                Path::Transmitted => s.at(frequency),
+            },
+        };
+        for e in &self.enclosures {
+            phi *= (-e.ln_factor(frequency)).exp();
+        }
+        phi
+    }
 }
 
 /// The phasor sum over sources of each distinct frequency, ascending: (Hz, V peak).
@@ -211,16 +318,22 @@ impl VictimReport {
     }
 }
 
-/// Couples every source of `scene` into `victim`.
-pub fn couple_victim(scene: &crate::Scene, victim: &crate::scene::Victim) -> VictimReport {
+/// Couples every source of `scene` into `victim`; fails only when a shield cannot be
+/// solved for this placement (the reason names the victim).
+pub fn couple_victim(scene: &Scene, victim: &Victim) -> Result<VictimReport, String> {
     let sources: Vec<SourceCoupling> = scene
         .sources
         .iter()
         .map(|s| {
-            let phi = flux_per_amp(&s.conductors, &victim.edges, scene.tolerance);
-            SourceCoupling::new(&s.id, victim.turns * phi.value, &s.lines, phi.converged)
+            let model = PairModel::new(scene, s, victim)?;
+            Ok(SourceCoupling::from_model(
+                &s.id,
+                victim.turns,
+                &model,
+                &s.lines,
+            ))
         })
-        .collect();
+        .collect::<Result<_, String>>()?;
     let by_frequency = emf_by_frequency(&sources);
     let load_rms = victim.load.map(|r| {
         let v: Vec<(f64, Complex64)> = by_frequency
@@ -229,14 +342,14 @@ pub fn couple_victim(scene: &crate::Scene, victim: &crate::scene::Victim) -> Vic
             .collect();
         total_rms(&v)
     });
-    VictimReport {
+    Ok(VictimReport {
         id: victim.id.clone(),
         limit: victim.limit,
         total_rms: total_rms(&by_frequency),
         sources,
         by_frequency,
         load_rms,
-    }
+    })
 }
 
 /// Voltage across a load `r` (ohm) fed by EMF phasor `e` (V) at `f` (Hz) through the

@@ -35,6 +35,7 @@ pub mod points_csv;
 pub mod probe;
 pub mod quadrature;
 pub mod scene;
+pub mod shield;
 pub mod spectrum;
 pub mod sweep;
 pub mod units;

@@ -116,7 +116,15 @@ fn refine<F: Fn(&Victim) -> f64>(
     worst: bool,
     total: &F,
 ) -> Orientation {
-    let eval = |n: &Vec3| total(&victim.facing(n));
+    // A placement the model cannot solve (NaN) is never preferred.
+    let eval = |n: &Vec3| {
+        let v = total(&victim.facing(n));
+        match (v.is_nan(), worst) {
+            (false, _) => v,
+            (true, true) => f64::NEG_INFINITY,
+            (true, false) => f64::INFINITY,
+        }
+    };
     let better = |a: f64, b: f64| if worst { a > b } else { a < b };
     let mut n = start.normalize();
     let mut value = eval(&n);

@@ -31,13 +31,34 @@ pub struct ProbePoint {
     pub lines: Vec<ProbeLine>,
 }
 
-/// B of every line of every source at `points` (m).
-pub fn probe(scene: &Scene, points: &[Vec3]) -> Vec<ProbePoint> {
-    let per_source: Vec<Vec<Vec3>> = scene
-        .sources
-        .iter()
-        .map(|s| b_at_points(&s.conductors, points))
-        .collect();
+/// B of every line of every source at `points` (m), with the scene's shields in
+/// place; fails only for points inside or between shield sheets (or too close to one
+/// to solve).
+pub fn probe(scene: &Scene, points: &[Vec3]) -> Result<Vec<ProbePoint>, String> {
+    if crate::shield::scene_is_shielded(scene) {
+        let freqs = frequencies(scene);
+        let lines = crate::shield::shielded_lines(scene, points, &freqs)?;
+        return Ok(points
+            .iter()
+            .enumerate()
+            .map(|(p, &position)| ProbePoint {
+                position,
+                lines: freqs
+                    .iter()
+                    .zip(&lines)
+                    .map(|(&frequency, per_point)| ProbeLine {
+                        frequency,
+                        b: per_point[p],
+                    })
+                    .collect(),
+            })
+            .collect());
+    }
+    Ok(free_space(scene, points))
+}
+
+/// Distinct line frequencies of the scene, ascending, Hz.
+fn frequencies(scene: &Scene) -> Vec<f64> {
     let mut freqs: Vec<f64> = scene
         .sources
         .iter()
@@ -45,6 +66,16 @@ pub fn probe(scene: &Scene, points: &[Vec3]) -> Vec<ProbePoint> {
         .collect();
     freqs.sort_by(f64::total_cmp);
     freqs.dedup_by(|a, b| same_frequency(*a, *b));
+    freqs
+}
+
+fn free_space(scene: &Scene, points: &[Vec3]) -> Vec<ProbePoint> {
+    let per_source: Vec<Vec<Vec3>> = scene
+        .sources
+        .iter()
+        .map(|s| b_at_points(&s.conductors, points))
+        .collect();
+    let freqs = frequencies(scene);
     points
         .iter()
         .enumerate()

@@ -2,7 +2,7 @@
 //! orientation at every step.
 
 use crate::Scene;
-use crate::coupling::{SourceCoupling, emf_by_frequency, flux_per_amp, total_rms};
+use crate::coupling::{PairModel, SourceCoupling, emf_by_frequency, total_rms};
 use crate::field::Vec3;
 use crate::orientation::{Orientation, search, small_loop_matrix};
 use crate::scene::Victim;
@@ -49,16 +49,20 @@ struct Step {
     lines: Vec<Vec<Line>>,
 }
 
-fn step_at(scene: &Scene, spec: &SweepSpec, x: f64) -> Step {
-    let base = &scene.victims[spec.victim];
-    let victim = match spec.vary {
+/// The victim `base` at swept value `x` of `spec` (moved, turned, or as placed).
+pub fn victim_at(base: &Victim, spec: &SweepSpec, x: f64) -> Victim {
+    match spec.vary {
         Vary::Distance(dir) => base.moved(&Rotation3::identity(), &(dir * x)),
         Vary::Angle(axis) => base.moved(
             &Rotation3::from_axis_angle(&Unit::new_normalize(axis), x),
             &Vec3::zeros(),
         ),
         Vary::Frequency => base.clone(),
-    };
+    }
+}
+
+fn step_at(scene: &Scene, spec: &SweepSpec, x: f64) -> Step {
+    let victim = victim_at(&scene.victims[spec.victim], spec, x);
     let lines = scene
         .sources
         .iter()
@@ -79,24 +83,45 @@ fn step_at(scene: &Scene, spec: &SweepSpec, x: f64) -> Step {
     Step { victim, lines }
 }
 
-/// Per-frequency EMF phasors and the total rms for `victim` with per-source `lines`.
+/// Per-frequency EMF phasors and the total rms for `victim` with per-source `lines`;
+/// fails only when a shield cannot be solved for this placement.
 pub fn victim_emf(
     scene: &Scene,
+    victim: &Victim,
+    lines: &[Vec<Line>],
+) -> Result<(Vec<(f64, Complex64)>, f64), String> {
+    let models: Vec<PairModel> = scene
+        .sources
+        .iter()
+        .map(|s| PairModel::new(scene, s, victim))
+        .collect::<Result<_, String>>()?;
+    Ok(emf_from_models(scene, &models, victim, lines))
+}
+
+/// As [`victim_emf`] with the pair models already built (they do not depend on the
+/// lines, so a frequency sweep builds them once).
+fn emf_from_models(
+    scene: &Scene,
+    models: &[PairModel],
     victim: &Victim,
     lines: &[Vec<Line>],
 ) -> (Vec<(f64, Complex64)>, f64) {
     let couplings: Vec<SourceCoupling> = scene
         .sources
         .iter()
+        .zip(models)
         .zip(lines)
-        .map(|(s, l)| {
-            let phi = flux_per_amp(&s.conductors, &victim.edges, scene.tolerance);
-            SourceCoupling::new(&s.id, victim.turns * phi.value, l, phi.converged)
-        })
+        .map(|((s, m), l)| SourceCoupling::from_model(&s.id, victim.turns, m, l))
         .collect();
     let by_f = emf_by_frequency(&couplings);
     let total = total_rms(&by_f);
     (by_f, total)
+}
+
+/// The total for the orientation search: NaN where a shield cannot be solved (a tilted
+/// victim that would cut a sheet), which the search never prefers.
+fn search_total(scene: &Scene, victim: &Victim, lines: &[Vec<Line>]) -> f64 {
+    victim_emf(scene, victim, lines).map_or(f64::NAN, |r| r.1)
 }
 
 fn phasors(lines: &[Vec<Line>]) -> Vec<Vec<(f64, Complex64)>> {
@@ -109,64 +134,88 @@ fn phasors(lines: &[Vec<Line>]) -> Vec<Vec<(f64, Complex64)>> {
 /// Worst orientation of `victim` for `lines`.
 fn worst(scene: &Scene, victim: &Victim, lines: &[Vec<Line>]) -> Orientation {
     let q = small_loop_matrix(scene, victim, &phasors(lines));
-    search(victim, &q, true, |v| victim_emf(scene, v, lines).1)
+    search(victim, &q, true, |v| search_total(scene, v, lines))
 }
 
-fn row_at(scene: &Scene, spec: &SweepSpec, x: f64) -> SweepRow {
+fn row_at(
+    scene: &Scene,
+    spec: &SweepSpec,
+    x: f64,
+    models: Option<&[PairModel]>,
+) -> Result<SweepRow, String> {
     let step = step_at(scene, spec, x);
     if spec.worst {
         let o = worst(scene, &step.victim, &step.lines);
-        let (lines, total) = victim_emf(scene, &step.victim.facing(&o.normal), &step.lines);
-        SweepRow {
+        let (lines, total) = victim_emf(scene, &step.victim.facing(&o.normal), &step.lines)?;
+        Ok(SweepRow {
             value: x,
             lines,
             total_rms: total,
             worst_axis: Some(o.normal),
-        }
+        })
     } else {
-        let (lines, total) = victim_emf(scene, &step.victim, &step.lines);
-        SweepRow {
+        let (lines, total) = match models {
+            Some(m) => emf_from_models(scene, m, &step.victim, &step.lines),
+            None => victim_emf(scene, &step.victim, &step.lines)?,
+        };
+        Ok(SweepRow {
             value: x,
             lines,
             total_rms: total,
             worst_axis: None,
-        }
+        })
     }
 }
 
 /// Runs one sweep. `progress` is called once per finished step (from any thread).
-pub fn run(scene: &Scene, spec: &SweepSpec, progress: &(dyn Fn() + Sync)) -> SweepResult {
+/// Fails only when a shield cannot be solved at some step (the reason says which).
+pub fn run(
+    scene: &Scene,
+    spec: &SweepSpec,
+    progress: &(dyn Fn() + Sync),
+) -> Result<SweepResult, String> {
+    let victim = &scene.victims[spec.victim];
+    // A frequency sweep keeps the geometry: build the pair models once.
+    let models: Option<Vec<PairModel>> = match spec.vary {
+        Vary::Frequency => Some(
+            scene
+                .sources
+                .iter()
+                .map(|s| PairModel::new(scene, s, victim))
+                .collect::<Result<_, String>>()?,
+        ),
+        _ => None,
+    };
     let rows: Vec<SweepRow> = spec
         .values()
         .into_par_iter()
         .map(|x| {
-            let row = row_at(scene, spec, x);
+            let row = row_at(scene, spec, x, models.as_deref());
             progress();
             row
         })
-        .collect();
-    let victim = &scene.victims[spec.victim];
+        .collect::<Result<_, String>>()?;
     let limit = victim.limit;
     let safe_value = match (spec.vary, limit) {
         (Vary::Distance(_), Some(l)) => safe_distance(&rows, l, scene.tolerance, |x| {
-            row_at(scene, spec, x).total_rms
+            row_at(scene, spec, x, None).map_or(f64::INFINITY, |r| r.total_rms)
         }),
         _ => None,
     };
     let base_lines: Vec<Vec<Line>> = scene.sources.iter().map(|s| s.lines.clone()).collect();
-    let placed_total = victim_emf(scene, victim, &base_lines).1;
+    let placed_total = victim_emf(scene, victim, &base_lines)?.1;
     let q = small_loop_matrix(scene, victim, &phasors(&base_lines));
     let best_at_placed = Some(search(victim, &q, false, |v| {
-        victim_emf(scene, v, &base_lines).1
+        search_total(scene, v, &base_lines)
     }));
-    SweepResult {
+    Ok(SweepResult {
         spec: spec.clone(),
         rows,
         safe_value,
         limit,
         best_at_placed,
         placed_total,
-    }
+    })
 }
 
 /// The smallest x beyond which `total(x) ≤ limit` to the end of the sampled range:

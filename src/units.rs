@@ -310,6 +310,11 @@ pub fn mm(metres: f64) -> String {
     format_si(metres, "m", 4)
 }
 
+/// A point for messages, each coordinate in engineering units: `(1.000 mm, 0.000 m, ...)`.
+pub fn mm_point(p: &crate::field::Vec3) -> String {
+    format!("({}, {}, {})", mm(p.x), mm(p.y), mm(p.z))
+}
+
 /// Formats an area in m² with the prefix on the metre, e.g. `"706.9 mm²"`.
 pub fn format_area(value: f64, digits: usize) -> String {
     let (factor, unit) = if value.abs() >= 1.0 {

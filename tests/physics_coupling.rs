@@ -325,7 +325,7 @@ fn induced_emf_equals_minus_j_omega_m_i_for_a_sine_line() {
         d,
         "axis = [0, 0, 1]",
     );
-    let rep = couple_victim(&scene, &scene.victims[0]);
+    let rep = couple_victim(&scene, &scene.victims[0]).unwrap();
     let line = &rep.sources[0].lines[0];
     let want = faraday(m, f, current);
     let e_m = rel(rep.sources[0].mutual_inductance, m);
@@ -352,7 +352,7 @@ fn induced_emf_equals_minus_j_omega_m_i_for_a_sine_line() {
         d,
         "axis = [0, 0, -1]",
     );
-    let rep = couple_victim(&flipped, &flipped.victims[0]);
+    let rep = couple_victim(&flipped, &flipped.victims[0]).unwrap();
     let want = faraday(-m, f, Complex64::new(2.0, 0.0));
     let e = (rep.sources[0].lines[0].emf - want).norm() / want.norm();
     eprintln!("EMF flipped victim (rms-specified current): rel {e:.2e}");
@@ -387,7 +387,7 @@ fn emf_of_two_sources_at_one_frequency_adds_as_phasors() {
             zv,
             "",
         );
-        let rep = couple_victim(&scene, &scene.victims[0]);
+        let rep = couple_victim(&scene, &scene.victims[0]).unwrap();
         let f = 25e3;
         let ea = faraday(ma, f, Complex64::new(1.0, 0.0));
         let eb = faraday(
@@ -443,7 +443,7 @@ fn emf_of_lines_at_different_frequencies_adds_root_sum_square() {
         zv,
         "",
     );
-    let rep = couple_victim(&scene, &scene.victims[0]);
+    let rep = couple_victim(&scene, &scene.victims[0]).unwrap();
     let expected = [
         (10e3, faraday(ma, 10e3, Complex64::new(1.0, 0.0))),
         (
@@ -479,7 +479,7 @@ fn source_and_victim_turns_multiply_mutual_inductance() {
          position = [0, 0, {d:e}]\n"
     );
     let scene = Scene::parse("turns.toml", &t).unwrap();
-    let rep = couple_victim(&scene, &scene.victims[0]);
+    let rep = couple_victim(&scene, &scene.victims[0]).unwrap();
     let e = rel(
         rep.sources[0].mutual_inductance,
         12.0 * maxwell_coaxial(a, b, d),
@@ -522,7 +522,7 @@ fn field_and_emf_superpose_over_sources_and_scale_linearly_with_current() {
             )
         })
         .collect();
-    let got = probe(&scene, &pts);
+    let got = probe(&scene, &pts).unwrap();
     let mut worst: f64 = 0.0;
     for (p, pp) in pts.iter().zip(&got) {
         assert_eq!(pp.lines.len(), 1);
@@ -540,7 +540,7 @@ fn field_and_emf_superpose_over_sources_and_scale_linearly_with_current() {
 
     let s = 7.3;
     let scaled = build(s);
-    let got_s = probe(&scaled, &pts);
+    let got_s = probe(&scaled, &pts).unwrap();
     let mut lin: f64 = 0.0;
     for (g, gs) in got.iter().zip(&got_s) {
         for k in 0..3 {
@@ -548,8 +548,8 @@ fn field_and_emf_superpose_over_sources_and_scale_linearly_with_current() {
             lin = lin.max((gs.lines[0].b[k] - want).norm() / want.norm().max(1e-300));
         }
     }
-    let r1 = couple_victim(&scene, &scene.victims[0]);
-    let rs = couple_victim(&scaled, &scaled.victims[0]);
+    let r1 = couple_victim(&scene, &scene.victims[0]).unwrap();
+    let rs = couple_victim(&scaled, &scaled.victims[0]).unwrap();
     lin = lin.max(rel(rs.total_rms, s * r1.total_rms));
     let want_emf = faraday(maxwell_coaxial(0.020, 0.015, 0.010), 5e3, ia)
         + faraday(maxwell_coaxial(0.012, 0.015, 0.015), 5e3, ib);
@@ -629,7 +629,10 @@ fn mutual_inductance_and_field_are_invariant_under_rigid_motion_of_the_scene() {
     let s2 = scene_text(&place, &q);
     let mut worst_m: f64 = 0.0;
     for (v1, v2) in s1.victims.iter().zip(&s2.victims) {
-        let (r1, r2) = (couple_victim(&s1, v1), couple_victim(&s2, v2));
+        let (r1, r2) = (
+            couple_victim(&s1, v1).unwrap(),
+            couple_victim(&s2, v2).unwrap(),
+        );
         for (c1, c2) in r1.sources.iter().zip(&r2.sources) {
             let e = rel(c2.mutual_inductance, c1.mutual_inductance);
             eprintln!(
@@ -655,7 +658,7 @@ fn mutual_inductance_and_field_are_invariant_under_rigid_motion_of_the_scene() {
         })
         .collect();
     let moved: Vec<Vec3> = pts.iter().map(place).collect();
-    let (b1, b2) = (probe(&s1, &pts), probe(&s2, &moved));
+    let (b1, b2) = (probe(&s1, &pts).unwrap(), probe(&s2, &moved).unwrap());
     let mut worst_b: f64 = 0.0;
     for (p1, p2) in b1.iter().zip(&b2) {
         let re = |pp: &strayflux::probe::ProbePoint| {

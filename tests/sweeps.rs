@@ -116,7 +116,7 @@ fn grid_worst(
 ) -> (f64, Vec3) {
     normals
         .par_iter()
-        .map(|u| (victim_emf(scene, &victim.facing(u), lines).1, *u))
+        .map(|u| (victim_emf(scene, &victim.facing(u), lines).unwrap().1, *u))
         .reduce(
             || (f64::NEG_INFINITY, Vec3::zeros()),
             |a, b| if b.0 > a.0 { b } else { a },
@@ -361,7 +361,7 @@ steps = 11
 scale = "log"
 "#;
     let scene = Scene::parse("far.toml", text).expect("scene parses");
-    let result = run(&scene, &scene.sweeps[0], &|| {});
+    let result = run(&scene, &scene.sweeps[0], &|| {}).unwrap();
     let u = Vec3::new(1.0, 2.0, 2.0) / 3.0;
     let m = Vec3::new(0.0, 1.0, 1.0).normalize() * (w * h); // moment per ampere, A·m²
     let n = Vec3::new(1.0, 0.0, 2.0).normalize();
@@ -493,8 +493,12 @@ fn worst_orientation_search_finds_the_grid_maximum_for_small_and_large_victims()
         let t0 = std::time::Instant::now();
         let (grid_best, grid_n) = grid_worst(&scene, victim, &lines, &normals_for(victim));
         let q = small_loop_matrix(&scene, victim, &phasors(&lines));
-        let found = search(victim, &q, true, |v| victim_emf(&scene, v, &lines).1);
-        let again = victim_emf(&scene, &victim.facing(&found.normal), &lines).1;
+        let found = search(victim, &q, true, |v| {
+            victim_emf(&scene, v, &lines).unwrap().1
+        });
+        let again = victim_emf(&scene, &victim.facing(&found.normal), &lines)
+            .unwrap()
+            .1;
         let shortfall = db(grid_best / found.total_rms);
         eprintln!(
             "{}: grid best {grid_best:.6e} V at {:.4?}; search {:.6e} V at {:.4?} \
@@ -522,7 +526,7 @@ fn worst_orientation_search_finds_the_grid_maximum_for_small_and_large_victims()
             ));
         }
         // The worst case is at least as bad as the victim as placed.
-        assert!(found.total_rms >= victim_emf(&scene, victim, &lines).1 * (1.0 - 1e-12));
+        assert!(found.total_rms >= victim_emf(&scene, victim, &lines).unwrap().1 * (1.0 - 1e-12));
     }
     assert!(failures.is_empty(), "{failures:#?}");
 }
@@ -533,13 +537,13 @@ fn worst_orientation_sweep_rows_match_the_grid_maximum_at_every_step() {
     let lines = scene_lines(&scene);
     let mut failures = Vec::new();
     for spec in &scene.sweeps {
-        let result = run(&scene, spec, &|| {});
+        let result = run(&scene, spec, &|| {}).unwrap();
         let base = &scene.victims[spec.victim];
         for row in &result.rows {
             let axis = row.worst_axis.expect("worst sweeps report the axis");
             let moved = base.moved(&nalgebra::Rotation3::identity(), &(Vec3::x() * row.value));
             let (grid_best, _) = grid_worst(&scene, &moved, &lines, &normals_for(&moved));
-            let at_axis = victim_emf(&scene, &moved.facing(&axis), &lines).1;
+            let at_axis = victim_emf(&scene, &moved.facing(&axis), &lines).unwrap().1;
             let shortfall = db(grid_best / row.total_rms);
             eprintln!(
                 "{} at {:.1} mm: row {:.6e} V, grid {grid_best:.6e} V ({shortfall:+.4} dB), \

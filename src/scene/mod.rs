@@ -8,6 +8,7 @@
 mod current;
 pub mod map;
 pub mod reader;
+mod shield;
 mod source;
 pub mod sweep;
 mod victim;
@@ -20,6 +21,8 @@ use crate::spectrum::{Line, near_field_limit};
 use crate::units::Dimension;
 use reader::{Doc, Table, did_you_mean};
 use std::path::Path;
+
+pub use shield::{side_of, source_points, victim_points};
 
 /// Default relative accuracy of fields, flux and M.
 pub const DEFAULT_TOLERANCE: f64 = 1e-6;
@@ -43,6 +46,12 @@ pub struct Scene {
     pub sweeps: Vec<sweep::SweepSpec>,
     /// Field maps in file order.
     pub maps: Vec<map::MapSpec>,
+    /// Flat sheets in file order (`[[shield]]`).
+    pub shields: Vec<crate::shield::barrier::Sheet>,
+    /// The sheets combined into one stack, if there are any.
+    pub barrier: Option<crate::shield::barrier::Barrier>,
+    /// Closed boxes around victims (`[[enclosure]]`).
+    pub enclosures: Vec<crate::shield::enclosure::Enclosure>,
     /// Warnings found while loading (results outside the model, unclosed paths).
     pub warnings: Vec<String>,
 }
@@ -203,18 +212,18 @@ impl Scene {
 }
 
 /// Top-level tables, those of later versions refused by name.
-const TOP_KEYS: &[&str] = &["scene", "solver", "source", "victim", "sweep", "map"];
-const LATER_KEYS: &[&str] = &["shield", "enclosure"];
+const TOP_KEYS: &[&str] = &[
+    "scene",
+    "solver",
+    "source",
+    "victim",
+    "shield",
+    "enclosure",
+    "sweep",
+    "map",
+];
 
 fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, InputError> {
-    for later in LATER_KEYS {
-        if root.has(later) {
-            return Err(root.error_at(
-                later,
-                format!("[[{later}]] is not supported yet in this version of strayflux"),
-            ));
-        }
-    }
     let title = match root.get("scene") {
         Some(v) => {
             let t = v.table()?;
@@ -247,10 +256,24 @@ fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, In
         check_unique(&item, &v.id, &mut ids)?;
         victims.push(v);
     }
+    let shield_tables = array_of_tables(root, "shield")?;
+    let (shields, barrier) = shield::parse_shields(&shield_tables, &sources, &victims)?;
+    for (t, s) in shield_tables.iter().zip(&shields) {
+        check_unique(t, &s.id, &mut ids)?;
+    }
+    let mut enclosures = Vec::new();
+    for item in array_of_tables(root, "enclosure")? {
+        let e = shield::parse_enclosure(&item, &sources, &victims)?;
+        check_unique(&item, &e.id, &mut ids)?;
+        enclosures.push(e);
+    }
     let mut sweeps = Vec::new();
     for item in array_of_tables(root, "sweep")? {
         let s = sweep::parse(&item, &victims)?;
         check_unique(&item, &s.id, &mut ids)?;
+        if let Some(b) = &barrier {
+            shield::check_sweep(&item, &s, b, &victims)?;
+        }
         sweeps.push(s);
     }
     let line_count = distinct_line_count(&sources);
@@ -258,6 +281,9 @@ fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, In
     for item in array_of_tables(root, "map")? {
         let m = map::parse(&item, line_count)?;
         check_unique(&item, &m.id, &mut ids)?;
+        if let Some(b) = &barrier {
+            shield::check_map(&item, &m, b)?;
+        }
         maps.push(m);
     }
     root.finish(TOP_KEYS, "a scene file")?;
@@ -272,6 +298,9 @@ fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, In
         victims,
         sweeps,
         maps,
+        shields,
+        barrier,
+        enclosures,
         warnings,
     };
     let mut extra = Vec::new();

@@ -26,6 +26,15 @@ impl Vary {
             Vary::Frequency => "frequency",
         }
     }
+
+    /// A swept value for messages: a length, an angle in degrees or a frequency.
+    pub fn format_value(&self, x: f64) -> String {
+        match self {
+            Vary::Distance(_) => crate::units::format_si(x, "m", 4),
+            Vary::Angle(_) => format!("{:.2}°", x.to_degrees()),
+            Vary::Frequency => crate::units::format_si(x, "Hz", 4),
+        }
+    }
 }
 
 /// A validated sweep.

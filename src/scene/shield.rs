@@ -1,0 +1,377 @@
+//! `[[shield]]` and `[[enclosure]]` tables → sheets, the combined stack, enclosures;
+//! checks that no sheet cuts a source or a victim and that no enclosure wall does.
+
+use super::reader::{Table, Value, did_you_mean};
+use super::{Source, Victim, parse_frame, parse_id};
+use crate::error::InputError;
+use crate::field::Vec3;
+use crate::geometry::Edge;
+use crate::shield::barrier::{Barrier, Place, Sheet};
+use crate::shield::enclosure::Enclosure;
+use crate::shield::material::{self, Material};
+use crate::units::Dimension;
+
+/// Reads a `material`: a built-in name or `{ conductivity, relative_permeability }`.
+pub(crate) fn parse_material(v: &Value<'_, '_>) -> Result<Material, InputError> {
+    if v.is_table() {
+        let t = v.table()?;
+        let c = t.require("conductivity", "e.g. \"3.5e7 S/m\"")?;
+        let sigma = c.quantity(Dimension::Conductivity)?;
+        if sigma < 0.0 {
+            return Err(c.error(format!("must not be negative, got {}", c.raw())));
+        }
+        let mu_r = match t.get("relative_permeability") {
+            Some(m) => {
+                let x = m.number()?;
+                if x < 1.0 {
+                    return Err(m.error(format!(
+                        "must be at least 1 (strayflux models conductors and \
+                         paramagnetic or ferromagnetic materials), got {x}"
+                    )));
+                }
+                x
+            }
+            None => 1.0,
+        };
+        t.finish(
+            &[],
+            "a custom material (conductivity, relative_permeability)",
+        )?;
+        return Ok(Material::custom(sigma, mu_r));
+    }
+    let name = v.string().map_err(|_| {
+        v.error(format!(
+            "give a material name ({}) or {{ conductivity = \"3.5e7 S/m\", \
+             relative_permeability = 1 }}",
+            material::names().join(", ")
+        ))
+    })?;
+    if let Some(m) = material::built_in(name) {
+        return Ok(m);
+    }
+    let names = material::names();
+    let hint = did_you_mean(name, &names)
+        .map(|s| format!("; did you mean \"{s}\"?"))
+        .unwrap_or_default();
+    Err(v.error(format!(
+        "unknown material \"{name}\"; built in: {}{hint} (or give \
+         {{ conductivity, relative_permeability }})",
+        names.join(", ")
+    )))
+}
+
+/// Reads one `[[shield]]`.
+pub(crate) fn parse_sheet(t: &Table<'_, '_>) -> Result<Sheet, InputError> {
+    let id = parse_id(t)?;
+    let origin = t
+        .require(
+            "position",
+            "a point on the sheet's first face, e.g. [\"20 mm\", 0, 0]",
+        )?
+        .vector(Dimension::Length)?;
+    let normal = t
+        .require("axis", "the sheet normal, e.g. [1, 0, 0]")?
+        .direction()?;
+    let layers = match (t.get("layers"), t.get("material")) {
+        (Some(l), None) => {
+            if t.has("thickness") {
+                return Err(t.error_at(
+                    "thickness",
+                    "with `layers`, give each layer its own thickness and leave this out",
+                ));
+            }
+            let items = l.array()?;
+            if items.is_empty() {
+                return Err(l.error("needs at least one { material, thickness }"));
+            }
+            let mut out = Vec::new();
+            for item in items {
+                let lt = item.table()?;
+                let m = parse_material(&lt.require("material", "a material name")?)?;
+                let th = lt
+                    .require("thickness", "the layer's thickness, e.g. \"35 um\"")?
+                    .positive(Dimension::Length)?;
+                lt.finish(&[], "a layer (material, thickness)")?;
+                out.push((m, th));
+            }
+            out
+        }
+        (None, Some(m)) => {
+            let m = parse_material(&m)?;
+            let th = t
+                .require("thickness", "the sheet thickness, e.g. \"1 mm\"")?
+                .positive(Dimension::Length)?;
+            vec![(m, th)]
+        }
+        (Some(_), Some(_)) => {
+            return Err(t.error_at(
+                "material",
+                "give either `material` and `thickness` or `layers`, not both",
+            ));
+        }
+        (None, None) => {
+            return Err(
+                t.error("missing key `material` (a material name and a `thickness`, or `layers`)")
+            );
+        }
+    };
+    t.finish(
+        &["id", "position", "axis", "material", "thickness", "layers"],
+        "[[shield]]",
+    )?;
+    Ok(Sheet {
+        id,
+        origin,
+        normal,
+        layers,
+    })
+}
+
+/// Scene points of a victim's path (every edge sampled, arcs finely).
+pub fn victim_points(edges: &[Edge]) -> Vec<Vec3> {
+    edges
+        .iter()
+        .flat_map(|e| {
+            let n = match e {
+                Edge::Line { .. } => 1,
+                Edge::Arc { .. } => 256,
+            };
+            (0..=n).map(move |k| e.point(k as f64 / n as f64))
+        })
+        .collect()
+}
+
+/// Scene points of a source's conductors (vertices and dipole centres).
+pub fn source_points(s: &Source) -> Vec<Vec3> {
+    let c = &s.conductors;
+    c.wires
+        .iter()
+        .flat_map(|w| w.vertices.iter().copied())
+        .chain(c.dipoles.iter().map(|d| d.position))
+        .collect()
+}
+
+/// The side of the stack all `points` are on, or a reason naming `what`.
+pub fn side_of(barrier: &Barrier, points: &[Vec3], what: &str) -> Result<bool, String> {
+    let mut side = None;
+    for p in points {
+        let s = match barrier.place(p) {
+            Place::Below(d) | Place::Above(d) if d <= 0.0 => {
+                return Err(format!("{what} touches a shield face"));
+            }
+            Place::Below(_) => false,
+            Place::Above(_) => true,
+            Place::Inside(id) => {
+                return Err(format!("{what} reaches into shield \"{id}\""));
+            }
+            Place::Between(a, b) => {
+                return Err(format!(
+                    "{what} lies between shields \"{a}\" and \"{b}\"; strayflux places \
+                     sources and victims outside the stack of sheets only"
+                ));
+            }
+        };
+        match side {
+            None => side = Some(s),
+            Some(prev) if prev != s => {
+                return Err(format!("{what} crosses the plane of the shields"));
+            }
+            _ => {}
+        }
+    }
+    Ok(side.unwrap_or(false))
+}
+
+/// Reads the `[[shield]]` tables and checks them against the sources and victims.
+pub(crate) fn parse_shields(
+    tables: &[Table<'_, '_>],
+    sources: &[Source],
+    victims: &[Victim],
+) -> Result<(Vec<Sheet>, Option<Barrier>), InputError> {
+    let mut sheets = Vec::new();
+    for t in tables {
+        sheets.push(parse_sheet(t)?);
+    }
+    if sheets.is_empty() {
+        return Ok((sheets, None));
+    }
+    let barrier =
+        Barrier::new(&sheets).map_err(|(i, reason)| tables[i].error_at("axis", reason))?;
+    let at = &tables[0];
+    for s in sources {
+        side_of(&barrier, &source_points(s), &format!("source \"{}\"", s.id)).map_err(|r| {
+            at.error_at(
+                "position",
+                format!("{r}: a sheet may not cut a source; move the sheet or the source"),
+            )
+        })?;
+    }
+    for v in victims {
+        side_of(
+            &barrier,
+            &victim_points(&v.edges),
+            &format!("victim \"{}\"", v.id),
+        )
+        .map_err(|r| {
+            at.error_at(
+                "position",
+                format!("{r}: a sheet may not cut a victim; move the sheet or the victim"),
+            )
+        })?;
+    }
+    Ok((sheets, Some(barrier)))
+}
+
+/// Reads one `[[enclosure]]`.
+pub(crate) fn parse_enclosure(
+    t: &Table<'_, '_>,
+    sources: &[Source],
+    victims: &[Victim],
+) -> Result<Enclosure, InputError> {
+    let id = parse_id(t)?;
+    let frame = parse_frame(t)?;
+    let size_v = t.require(
+        "size",
+        "outside edge lengths [x, y, z], e.g. [\"40 mm\", \"30 mm\", \"10 mm\"]",
+    )?;
+    let size = size_v.vector(Dimension::Length)?;
+    if size.iter().any(|&s| s <= 0.0) {
+        return Err(size_v.error("every edge length must be greater than zero"));
+    }
+    let material = parse_material(&t.require("material", "a material name")?)?;
+    let th_v = t.require("thickness", "the wall thickness, e.g. \"0.5 mm\"")?;
+    let thickness = th_v.positive(Dimension::Length)?;
+    if 2.0 * thickness >= size.min() {
+        return Err(th_v
+            .error("the walls would fill the box: make them thinner than half its smallest edge"));
+    }
+    let c = t.require(
+        "contains",
+        "the ids of the victims inside, e.g. [\"adc-in\"]",
+    )?;
+    let mut contains = Vec::new();
+    for item in c.array()? {
+        let name = item.string()?;
+        let Some(v) = victims.iter().find(|v| v.id == name) else {
+            let ids: Vec<&str> = victims.iter().map(|v| v.id.as_str()).collect();
+            let hint = did_you_mean(name, &ids)
+                .map(|s| format!("; did you mean \"{s}\"?"))
+                .unwrap_or_default();
+            return Err(item.error(format!("no victim has id \"{name}\"{hint}")));
+        };
+        contains.push(v.id.clone());
+    }
+    if contains.is_empty() {
+        return Err(c.error("list at least one victim id"));
+    }
+    t.finish(
+        &[
+            "id",
+            "position",
+            "axis",
+            "reference",
+            "size",
+            "material",
+            "thickness",
+            "contains",
+        ],
+        "[[enclosure]]",
+    )?;
+    let e = Enclosure {
+        id,
+        frame,
+        size,
+        material,
+        thickness,
+        contains,
+    };
+    let inner = Enclosure {
+        size: e.size - Vec3::repeat(2.0 * thickness),
+        ..e.clone()
+    };
+    for name in &e.contains {
+        let outside = victims
+            .iter()
+            .filter(|v| &v.id == name)
+            .any(|v| victim_points(&v.edges).iter().any(|p| !inner.holds(p)));
+        if outside {
+            return Err(c.error(format!(
+                "victim \"{name}\" is not inside enclosure \"{}\": enlarge or move the box",
+                e.id
+            )));
+        }
+    }
+    for s in sources {
+        let pts = source_points(s);
+        let inside = pts.iter().filter(|p| e.holds(p)).count();
+        let in_wall = pts.iter().any(|p| e.holds(p) && !inner.holds(p));
+        if in_wall || (inside > 0 && inside < pts.len()) {
+            return Err(t.error_at(
+                "size",
+                format!(
+                    "a wall of enclosure \"{}\" cuts source \"{}\": a source is either wholly \
+                     inside or wholly outside",
+                    e.id, s.id
+                ),
+            ));
+        }
+    }
+    Ok(e)
+}
+
+/// Checks that every step of `spec` keeps its victim outside the sheets and on one side.
+pub(crate) fn check_sweep(
+    t: &Table<'_, '_>,
+    spec: &super::sweep::SweepSpec,
+    barrier: &Barrier,
+    victims: &[Victim],
+) -> Result<(), InputError> {
+    let base = &victims[spec.victim];
+    let placed = side_of(barrier, &victim_points(&base.edges), "the victim").ok();
+    for x in spec.values() {
+        let v = crate::sweep::victim_at(base, spec, x);
+        let what = format!("at {} the victim \"{}\"", spec.vary.format_value(x), v.id);
+        let side = side_of(barrier, &victim_points(&v.edges), &what).map_err(|r| {
+            t.error_at(
+                "to",
+                format!("{r}: end the sweep before the sheet, or start it on the other side"),
+            )
+        })?;
+        if placed.is_some_and(|p| p != side) {
+            return Err(t.error_at(
+                "to",
+                format!("{what} has passed through the shields: a sweep stays on one side of them"),
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// Checks that no grid point of `spec` lies inside a sheet or between two sheets.
+pub(crate) fn check_map(
+    t: &Table<'_, '_>,
+    spec: &super::map::MapSpec,
+    barrier: &Barrier,
+) -> Result<(), InputError> {
+    for p in spec.all_points() {
+        match barrier.place(&p) {
+            Place::Inside(id) => {
+                return Err(t.error(format!(
+                    "map \"{}\" has grid points inside shield \"{id}\" (at {}): put the grid \
+                     on one side of the sheet, or shift it so no point falls inside",
+                    spec.id,
+                    crate::units::mm_point(&p)
+                )));
+            }
+            Place::Between(a, b) => {
+                return Err(t.error(format!(
+                    "map \"{}\" has grid points between shields \"{a}\" and \"{b}\", which \
+                     strayflux does not model",
+                    spec.id
+                )));
+            }
+            _ => {}
+        }
+    }
+    Ok(())
+}

@@ -1,0 +1,281 @@
+//! Magnetic shields: materials, flat sheets and stacks (exact quasi-static planar
+//! model), and closed enclosures (shell approximation).
+
+pub mod barrier;
+pub mod enclosure;
+pub mod layers;
+pub mod material;
+pub mod spectral;
+
+use crate::field::{Conductors, Vec3};
+use crate::geometry::Edge;
+use barrier::Barrier;
+use enclosure::Enclosure;
+use layers::Layer;
+use num_complex::Complex64;
+use spectral::{Path, Plan, PlanError, SourceSpectrum, WORK_BUDGET};
+use std::f64::consts::TAU;
+
+/// Largest shielding reported, dB: beyond it the shielded EMF has underflowed double
+/// precision (nothing gets through).
+pub const SHIELDING_CAP_DB: f64 = 300.0;
+
+/// The frequency-independent part of what the stack does to one source–target pair:
+/// one real term per radial node, to be weighted by the layers' response at each line.
+#[derive(Clone, Debug)]
+pub struct Scattered {
+    plan: Plan,
+    terms: Vec<f64>,
+    layers: Vec<Layer>,
+    /// Reflected (same side) or transmitted (far side).
+    pub path: Path,
+}
+
+impl Scattered {
+    /// The scattered flux per ampere (Wb/A) at `frequency` (Hz).
+    pub fn at(&self, frequency: f64) -> Complex64 {
+        let f = self.plan.factors(&self.layers, TAU * frequency, self.path);
+        f.iter().zip(&self.terms).map(|(x, t)| x * t).sum()
+    }
+}
+
+fn lateral_disc(frame: &spectral::SideFrame, points: &[Vec3]) -> (f64, f64, f64) {
+    let local: Vec<Vec3> = points.iter().map(|p| frame.local(p)).collect();
+    let (mut lo, mut hi) = (Vec3::repeat(f64::INFINITY), Vec3::repeat(f64::NEG_INFINITY));
+    for p in &local {
+        lo = lo.inf(p);
+        hi = hi.sup(p);
+    }
+    let (cx, cy) = (0.5 * (lo.x + hi.x), 0.5 * (lo.y + hi.y));
+    let r = local
+        .iter()
+        .map(|p| ((p.x - cx).powi(2) + (p.y - cy).powi(2)).sqrt())
+        .fold(0.0, f64::max);
+    (cx, cy, r)
+}
+
+/// Plans the spectral sum for a source on `source_side` and targets `targets` (scene
+/// points, each with its side), to `tolerance`.
+fn plan_for(
+    barrier: &Barrier,
+    conductors: &Conductors,
+    source_side: bool,
+    targets: &[(Vec3, bool)],
+    tolerance: f64,
+) -> Result<Plan, String> {
+    let (frame, _) = barrier.seen_from(source_side);
+    let src: Vec<Vec3> = conductors
+        .wires
+        .iter()
+        .flat_map(|w| w.vertices.iter().copied())
+        .chain(conductors.dipoles.iter().map(|d| d.position))
+        .collect();
+    let depth = src
+        .iter()
+        .map(|p| -frame.local(p).z)
+        .fold(f64::INFINITY, f64::min);
+    let height = targets
+        .iter()
+        .map(|(p, side)| {
+            let z = frame.local(p).z;
+            if *side == source_side { -z } else { z }
+        })
+        .fold(f64::INFINITY, f64::min);
+    let (sx, sy, sr) = lateral_disc(&frame, &src);
+    let pts: Vec<Vec3> = targets.iter().map(|t| t.0).collect();
+    let (tx, ty, tr) = lateral_disc(&frame, &pts);
+    let span = ((sx - tx).powi(2) + (sy - ty).powi(2)).sqrt() + sr + tr;
+    // 0.98: sampled arcs may dip slightly nearer than their samples.
+    let plan = Plan::new(0.98 * (depth + height), span, tolerance).map_err(|e| match e {
+        PlanError::Touching => "touches a shield face".to_string(),
+        PlanError::TooClose(..) => unreachable!("Plan::new does not budget"),
+    })?;
+    let work = SourceSpectrum::estimate_work(conductors, &plan, targets.len());
+    if work > WORK_BUDGET {
+        return Err(format!(
+            "is too close to the shield for its size: the planar sum would need {:.1e} \
+             terms (limit {:.0e}); move it away from the sheet or raise [solver] tolerance",
+            work, WORK_BUDGET
+        ));
+    }
+    Ok(plan)
+}
+
+/// The scattered flux model of `conductors` (on `source_side`) through the closed path
+/// `edges` (on `victim_side`, sampled as `victim_points`), or why it cannot be built.
+pub fn flux_model(
+    barrier: &Barrier,
+    conductors: &Conductors,
+    source_side: bool,
+    edges: &[Edge],
+    victim_points: &[Vec3],
+    victim_side: bool,
+    tolerance: f64,
+) -> Result<Scattered, String> {
+    let targets: Vec<(Vec3, bool)> = victim_points.iter().map(|p| (*p, victim_side)).collect();
+    let plan = plan_for(barrier, conductors, source_side, &targets, tolerance)?;
+    let (frame, layers) = barrier.seen_from(source_side);
+    let path = Barrier::path(source_side, victim_side);
+    let spectrum = SourceSpectrum::new(conductors, &frame, plan.clone());
+    let terms = spectrum.flux_terms(edges, &frame, path);
+    Ok(Scattered {
+        plan,
+        terms,
+        layers,
+        path,
+    })
+}
+
+/// The scattered B (T per ampere, complex) of `conductors` (on `source_side`) at each
+/// point of `points` (each with its side) for each of `frequencies` (Hz):
+/// `[point][frequency][component]`. Add the free-space field for points on the
+/// source's side.
+pub fn scattered_field(
+    barrier: &Barrier,
+    conductors: &Conductors,
+    source_side: bool,
+    points: &[(Vec3, bool)],
+    frequencies: &[f64],
+    tolerance: f64,
+) -> Result<Vec<Vec<[Complex64; 3]>>, String> {
+    use rayon::prelude::*;
+    if points.is_empty() {
+        return Ok(Vec::new());
+    }
+    let plan = plan_for(barrier, conductors, source_side, points, tolerance)?;
+    let (frame, layers) = barrier.seen_from(source_side);
+    let spectrum = SourceSpectrum::new(conductors, &frame, plan.clone());
+    let factors: Vec<[Vec<Complex64>; 2]> = frequencies
+        .iter()
+        .map(|f| {
+            [
+                plan.factors(&layers, TAU * f, Path::Reflected),
+                plan.factors(&layers, TAU * f, Path::Transmitted),
+            ]
+        })
+        .collect();
+    Ok(points
+        .par_iter()
+        .with_min_len(4)
+        .map(|(p, side)| {
+            let path = Barrier::path(source_side, *side);
+            let terms = spectrum.field_terms(p, &frame, path);
+            factors
+                .iter()
+                .map(|fs| {
+                    let f = &fs[usize::from(path == Path::Transmitted)];
+                    let mut b = [Complex64::new(0.0, 0.0); 3];
+                    for (x, t) in f.iter().zip(&terms) {
+                        for (c, bc) in b.iter_mut().enumerate() {
+                            *bc += x * t[c];
+                        }
+                    }
+                    b
+                })
+                .collect()
+        })
+        .collect())
+}
+
+/// The enclosures that shield `victim_id` from a source at `source_points`: those
+/// listing the victim whose box does not hold the source.
+pub fn enclosures_between<'a>(
+    enclosures: &'a [Enclosure],
+    victim_id: &str,
+    source_points: &[Vec3],
+) -> Vec<&'a Enclosure> {
+    enclosures
+        .iter()
+        .filter(|e| e.contains.iter().any(|c| c == victim_id))
+        .filter(|e| !source_points.iter().any(|p| e.holds(p)))
+        .collect()
+}
+
+/// Whether the scene has any shield (sheet or enclosure).
+pub fn scene_is_shielded(scene: &crate::Scene) -> bool {
+    scene.barrier.is_some() || !scene.enclosures.is_empty()
+}
+
+/// B phasors (T peak) with the scene's shields in place at `points` (m) for each of
+/// `frequencies` (Hz): `[frequency][point]`, every source's lines at that frequency
+/// summed. Free-space field on each source's own side plus the sheets' reflected
+/// field, the transmitted field beyond them, and inside an enclosure that does not hold
+/// the source the field divided by its shielding factor. Fails for points inside or
+/// between sheets.
+pub fn shielded_lines(
+    scene: &crate::Scene,
+    points: &[Vec3],
+    frequencies: &[f64],
+) -> Result<Vec<Vec<[Complex64; 3]>>, String> {
+    use crate::spectrum::same_frequency;
+    let mut out = vec![vec![[Complex64::new(0.0, 0.0); 3]; points.len()]; frequencies.len()];
+    let sides: Vec<bool> = match &scene.barrier {
+        None => vec![false; points.len()],
+        Some(b) => points
+            .iter()
+            .map(|p| {
+                side_of(
+                    b,
+                    std::slice::from_ref(p),
+                    &format!("the point {}", crate::units::mm_point(p)),
+                )
+            })
+            .collect::<Result<_, String>>()?,
+    };
+    for s in &scene.sources {
+        let free = crate::field::b_at_points(&s.conductors, points);
+        let src_points = crate::scene::source_points(s);
+        let (s_side, scattered) = match &scene.barrier {
+            None => (false, None),
+            Some(b) => {
+                let s_side = side_of(b, &src_points, &format!("source \"{}\"", s.id))?;
+                let targets: Vec<(Vec3, bool)> =
+                    points.iter().copied().zip(sides.iter().copied()).collect();
+                let f = scattered_field(
+                    b,
+                    &s.conductors,
+                    s_side,
+                    &targets,
+                    frequencies,
+                    scene.tolerance,
+                )
+                .map_err(|why| format!("a field point {why}"))?;
+                (s_side, Some(f))
+            }
+        };
+        let boxes: Vec<&Enclosure> = scene
+            .enclosures
+            .iter()
+            .filter(|e| !src_points.iter().any(|p| e.holds(p)))
+            .collect();
+        for (fi, &f) in frequencies.iter().enumerate() {
+            let factors: Vec<Complex64> = boxes.iter().map(|e| (-e.ln_factor(f)).exp()).collect();
+            for l in s.lines.iter().filter(|l| same_frequency(l.frequency, f)) {
+                for (pi, p) in points.iter().enumerate() {
+                    let mut b = [Complex64::new(0.0, 0.0); 3];
+                    if scene.barrier.is_none() || sides[pi] == s_side {
+                        for c in 0..3 {
+                            b[c] += free[pi][c];
+                        }
+                    }
+                    if let Some(sc) = &scattered {
+                        for c in 0..3 {
+                            b[c] += sc[pi][fi][c];
+                        }
+                    }
+                    for (e, x) in boxes.iter().zip(&factors) {
+                        if e.holds(p) {
+                            b.iter_mut().for_each(|v| *v *= x);
+                        }
+                    }
+                    for c in 0..3 {
+                        out[fi][pi][c] += l.current * b[c];
+                    }
+                }
+            }
+        }
+    }
+    Ok(out)
+}
+
+use crate::scene::side_of;

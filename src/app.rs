@@ -243,7 +243,7 @@ pub fn sweep(
             path.display()
         )));
     }
-    let total_steps: usize = chosen.iter().map(|s| s.steps).sum();
+    let total_steps: usize = chosen.iter().map(|s| s.steps * (1 + s.compare.len())).sum();
     let done = std::sync::atomic::AtomicUsize::new(0);
     let tick = || {
         let n = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
@@ -284,6 +284,28 @@ pub fn sweep(
     Ok(Outcome {
         stdout,
         warnings,
+        exit: 0,
+    })
+}
+
+/// `materials [--frequency F]`: the built-in shield materials with their skin depth.
+pub fn materials(frequency: Option<&str>) -> Result<Outcome, Error> {
+    let freqs = match frequency {
+        Some(text) => {
+            let f = parse_quantity(text, Dimension::Frequency)
+                .map_err(|e| Error::Usage(format!("--frequency \"{text}\": {}", e.0)))?;
+            if f.is_nan() || f <= 0.0 {
+                return Err(Error::Usage(format!(
+                    "--frequency \"{text}\": must be greater than zero"
+                )));
+            }
+            vec![f]
+        }
+        None => vec![50.0, 1e3, 1e5, 1e6],
+    };
+    Ok(Outcome {
+        stdout: text::materials(&crate::shield::material::all(), &freqs),
+        warnings: Vec::new(),
         exit: 0,
     })
 }
@@ -347,14 +369,27 @@ pub fn map(
             .iter()
             .find_map(|p| scene.far_point_warning(&format!("a corner of map \"{}\"", m.id), p));
         warnings.extend(far);
-        let per_amp = chunked_fields(&scene, &points, &|n| {
+        let tick = |n: usize| {
             let d = done.fetch_add(n, std::sync::atomic::Ordering::Relaxed) + n;
             progress(d, total);
-        });
+        };
         let freqs = map_frequencies(m, &lines_hz);
+        // Shielded maps solve every line per chunk of points; free-space maps keep B
+        // per ampere and scale it line by line.
+        let (per_amp, shielded) = if crate::shield::scene_is_shielded(&scene) {
+            (
+                Vec::new(),
+                Some(chunked_shielded(&scene, &points, &freqs, &tick)?),
+            )
+        } else {
+            (chunked_fields(&scene, &points, &tick), None)
+        };
         let mut entries = Vec::new();
         for (k, f) in freqs.iter().enumerate() {
-            let b = line_field(&scene, &per_amp, *f);
+            let b = match &shielded {
+                Some(lines) => lines[k].clone(),
+                None => line_field(&scene, &per_amp, *f),
+            };
             let name = if freqs.len() > 1 {
                 format!("{}-line{}.vti", m.id, k + 1)
             } else {
@@ -398,6 +433,27 @@ pub fn map(
         warnings,
         exit: 0,
     })
+}
+
+/// Shielded B phasors `[line][point]` at `points` for `freqs`, in chunks so that
+/// `tick(points done)` can report progress.
+fn chunked_shielded(
+    scene: &Scene,
+    points: &[Vec3],
+    freqs: &[f64],
+    tick: &(dyn Fn(usize) + Sync),
+) -> Result<Vec<Vec<[num_complex::Complex64; 3]>>, Error> {
+    const CHUNK: usize = 1 << 12;
+    let mut out: Vec<Vec<[num_complex::Complex64; 3]>> =
+        vec![Vec::with_capacity(points.len()); freqs.len()];
+    for chunk in points.chunks(CHUNK) {
+        let part = crate::shield::shielded_lines(scene, chunk, freqs).map_err(Error::Usage)?;
+        for (o, p) in out.iter_mut().zip(part) {
+            o.extend(p);
+        }
+        tick(chunk.len());
+    }
+    Ok(out)
 }
 
 /// B per ampere of every source at `points`, in chunks so that `tick(points done)` can

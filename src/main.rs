@@ -12,6 +12,10 @@ Cautions: results are estimates for design, not compliance evidence; confirm the
 measurement. The model is magnetic quasi-static (valid well inside λ/2π of the source),
 treats conductors as thin filaments (no skin or proximity effect in the windings) and
 does not model ferromagnetic cores: use a dipole or measured data for cored parts.
+Shield sheets are infinite, continuous and linear: a small, slotted or perforated sheet
+does less, and the permeability of steel and mu-metal varies with field level,
+frequency and treatment. Enclosures are an equal-volume-sphere estimate; seams, lids
+and holes make a real box worse.
 Sources of interest often run from mains or carry large currents: follow local codes
 and licensed practice when you measure them.";
 
@@ -84,6 +88,15 @@ enum Command {
         /// Print one JSON document instead of the summary.
         #[arg(long)]
         json: bool,
+    },
+    /// The built-in shield materials: conductivity, relative permeability and skin
+    /// depth, with the source of each value.
+    #[command(after_help = CAUTIONS)]
+    Materials {
+        /// Give the skin depth at this frequency ("60 Hz", "1 MHz"); default: at 50 Hz,
+        /// 1 kHz, 100 kHz and 1 MHz.
+        #[arg(long, value_name = "F", allow_hyphen_values = true)]
+        frequency: Option<String>,
     },
     /// The B phasor of every spectral line at given points.
     #[command(after_help = CAUTIONS)]
@@ -186,6 +199,7 @@ fn main() -> ExitCode {
             points,
             json,
         } => app::probe_points(scene, at, points.as_deref(), *json),
+        Command::Materials { frequency } => app::materials(frequency.as_deref()),
     };
     match result {
         Ok(outcome) => {

@@ -97,6 +97,11 @@ pub fn search<F: Fn(&Victim) -> f64>(
     if better(other.total_rms, best.total_rms) {
         best = other;
     }
+    // Every small-loop start may be unsolvable (a tilt that cuts a shield sheet): then
+    // start from the victim as placed.
+    if !best.total_rms.is_finite() || best.total_rms.is_nan() {
+        best = refine(victim, victim.frame.z, worst, &total);
+    }
     if worst {
         for start in &starts[2..] {
             if better(total(&victim.facing(start)), best.total_rms) {

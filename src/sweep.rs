@@ -41,6 +41,28 @@ pub struct SweepResult {
     pub best_at_placed: Option<Orientation>,
     /// Total at the placed position as placed, V rms.
     pub placed_total: f64,
+    /// With `compare`: the total at every step with only one sheet fitted, per
+    /// alternative.
+    pub compare: Vec<Alternative>,
+}
+
+/// One shield alternative of a compared sweep.
+#[derive(Clone, Debug)]
+pub struct Alternative {
+    /// The sheet fitted alone, or `None` for no sheet.
+    pub shield: Option<String>,
+    /// Total rms EMF at every step, V.
+    pub totals: Vec<f64>,
+}
+
+impl Alternative {
+    /// A legend label: "no shield" or "<id>".
+    pub fn label(&self) -> String {
+        match &self.shield {
+            None => "no shield".to_string(),
+            Some(id) => id.clone(),
+        }
+    }
 }
 
 /// The victim and source lines at one swept value.
@@ -175,6 +197,57 @@ pub fn run(
     progress: &(dyn Fn() + Sync),
 ) -> Result<SweepResult, String> {
     let victim = &scene.victims[spec.victim];
+    let rows = rows_of(scene, spec, progress)?;
+    let mut compare = Vec::new();
+    for alt in &spec.compare {
+        let alone = scene.with_only_sheet(alt.as_deref()).ok_or_else(|| {
+            format!(
+                "sweep \"{}\": shield {alt:?} cannot be fitted alone",
+                spec.id
+            )
+        })?;
+        let totals = rows_of(&alone, spec, progress)?
+            .iter()
+            .map(|r| r.total_rms)
+            .collect();
+        compare.push(Alternative {
+            shield: alt.clone(),
+            totals,
+        });
+    }
+    let limit = victim.limit;
+    let safe_value = match (spec.vary, limit) {
+        (Vary::Distance(_), Some(l)) => safe_distance(&rows, l, scene.tolerance, |x| {
+            row_at(scene, spec, x, None).map_or(f64::INFINITY, |r| r.total_rms)
+        }),
+        _ => None,
+    };
+    let base_lines: Vec<Vec<Line>> = scene.sources.iter().map(|s| s.lines.clone()).collect();
+    let placed_total = victim_emf(scene, victim, &base_lines)?.1;
+    let q = small_loop_matrix(scene, victim, &phasors(&base_lines));
+    // None when no orientation could be solved (every tilt would cut a sheet).
+    let best_at_placed = Some(search(victim, &q, false, |v| {
+        search_total(scene, v, &base_lines)
+    }))
+    .filter(|o| o.total_rms.is_finite());
+    Ok(SweepResult {
+        spec: spec.clone(),
+        rows,
+        safe_value,
+        limit,
+        best_at_placed,
+        placed_total,
+        compare,
+    })
+}
+
+/// Every step of `spec` in `scene`, in parallel.
+fn rows_of(
+    scene: &Scene,
+    spec: &SweepSpec,
+    progress: &(dyn Fn() + Sync),
+) -> Result<Vec<SweepRow>, String> {
+    let victim = &scene.victims[spec.victim];
     // A frequency sweep keeps the geometry: build the pair models once.
     let models: Option<Vec<PairModel>> = match spec.vary {
         Vary::Frequency => Some(
@@ -186,36 +259,14 @@ pub fn run(
         ),
         _ => None,
     };
-    let rows: Vec<SweepRow> = spec
-        .values()
+    spec.values()
         .into_par_iter()
         .map(|x| {
             let row = row_at(scene, spec, x, models.as_deref());
             progress();
             row
         })
-        .collect::<Result<_, String>>()?;
-    let limit = victim.limit;
-    let safe_value = match (spec.vary, limit) {
-        (Vary::Distance(_), Some(l)) => safe_distance(&rows, l, scene.tolerance, |x| {
-            row_at(scene, spec, x, None).map_or(f64::INFINITY, |r| r.total_rms)
-        }),
-        _ => None,
-    };
-    let base_lines: Vec<Vec<Line>> = scene.sources.iter().map(|s| s.lines.clone()).collect();
-    let placed_total = victim_emf(scene, victim, &base_lines)?.1;
-    let q = small_loop_matrix(scene, victim, &phasors(&base_lines));
-    let best_at_placed = Some(search(victim, &q, false, |v| {
-        search_total(scene, v, &base_lines)
-    }));
-    Ok(SweepResult {
-        spec: spec.clone(),
-        rows,
-        safe_value,
-        limit,
-        best_at_placed,
-        placed_total,
-    })
+        .collect()
 }
 
 /// The smallest x beyond which `total(x) ≤ limit` to the end of the sampled range:

@@ -22,7 +22,8 @@ pub fn value_in_unit(vary: &Vary, v: f64) -> f64 {
 }
 
 /// The sweep as CSV: the swept value, every line's EMF (rms, V), the total, the margin
-/// (dB, empty without a limit) and, for worst-case sweeps, the worst axis.
+/// (dB, empty without a limit), for worst-case sweeps the worst axis, and with
+/// `compare` the total with each shield alternative.
 pub fn sweep_csv(result: &SweepResult) -> String {
     let vary = &result.spec.vary;
     let mut out = String::new();
@@ -43,8 +44,16 @@ pub fn sweep_csv(result: &SweepResult) -> String {
     if result.spec.worst {
         out.push_str(",worst_axis_x,worst_axis_y,worst_axis_z");
     }
+    for a in &result.compare {
+        match &a.shield {
+            None => out.push_str(",total_emf_v_rms_no_shield"),
+            Some(id) => {
+                let _ = write!(out, ",total_emf_v_rms_with_{id}");
+            }
+        }
+    }
     out.push('\n');
-    for r in &result.rows {
+    for (i, r) in result.rows.iter().enumerate() {
         let _ = write!(out, "{:e}", value_in_unit(vary, r.value));
         for k in 0..first.len() {
             let e = r
@@ -62,6 +71,9 @@ pub fn sweep_csv(result: &SweepResult) -> String {
         }
         if let Some(a) = r.worst_axis {
             let _ = write!(out, ",{:.6},{:.6},{:.6}", a.x, a.y, a.z);
+        }
+        for a in &result.compare {
+            let _ = write!(out, ",{:e}", a.totals.get(i).copied().unwrap_or(f64::NAN));
         }
         out.push('\n');
     }

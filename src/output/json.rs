@@ -188,6 +188,14 @@ struct SweepJson {
     unit: &'static str,
     safe_value: Option<f64>,
     rows: Vec<SweepJsonRow>,
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    compare: Vec<CompareJson>,
+}
+
+#[derive(Serialize)]
+struct CompareJson {
+    shield: Option<String>,
+    total_emf_v_rms: Vec<f64>,
 }
 
 #[derive(Serialize)]
@@ -222,6 +230,14 @@ pub fn sweeps(results: &[crate::sweep::SweepResult]) -> String {
                         value: value_in_unit(vary, row.value),
                         total_emf_v_rms: row.total_rms,
                         worst_axis: row.worst_axis.map(|a| [a.x, a.y, a.z]),
+                    })
+                    .collect(),
+                compare: r
+                    .compare
+                    .iter()
+                    .map(|a| CompareJson {
+                        shield: a.shield.clone(),
+                        total_emf_v_rms: a.totals.clone(),
                     })
                     .collect(),
             }

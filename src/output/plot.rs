@@ -202,7 +202,11 @@ pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotEr
         scale: 1.0,
     };
     let totals: Vec<f64> = result.rows.iter().map(|r| r.total_rms).collect();
-    let data_peak = totals.iter().copied().fold(0.0, f64::max);
+    let data_peak = totals
+        .iter()
+        .chain(result.compare.iter().flat_map(|a| a.totals.iter()))
+        .copied()
+        .fold(0.0, f64::max);
     // On a linear axis a limit far above the data would flatten it: leave it off scale.
     let limit_shown = result.limit.filter(|&l| y_log || l <= 3.0 * data_peak);
     let peak = data_peak.max(limit_shown.unwrap_or(0.0));
@@ -219,6 +223,7 @@ pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotEr
         .collect();
     let mut y_lo = totals
         .iter()
+        .chain(result.compare.iter().flat_map(|a| a.totals.iter()))
         .map(|&v| y_of(v))
         .fold(f64::INFINITY, f64::min);
     let mut y_hi = y_of(peak);
@@ -250,15 +255,34 @@ pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotEr
             spec.id
         );
         let mut chart = axes_chart(&root, caption, (&x_axis, &y_axis), (x0, x1), (y0, y1))?;
-        draw_lines(&mut chart, result, &xs, &y_of)?;
-        chart
-            .draw_series(LineSeries::new(
-                xs.iter().zip(&totals).map(|(&x, &v)| (x, y_of(v))),
-                BLUE_700.stroke_width(3),
-            ))
-            .map_err(err)?
-            .label("total (all lines)")
-            .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 24, y)], BLUE_700.stroke_width(3)));
+        if result.compare.is_empty() {
+            draw_lines(&mut chart, result, &xs, &y_of)?;
+            chart
+                .draw_series(LineSeries::new(
+                    xs.iter().zip(&totals).map(|(&x, &v)| (x, y_of(v))),
+                    BLUE_700.stroke_width(3),
+                ))
+                .map_err(err)?
+                .label("total (all lines)")
+                .legend(|(x, y)| {
+                    PathElement::new(vec![(x, y), (x + 24, y)], BLUE_700.stroke_width(3))
+                });
+        } else {
+            // Shield alternatives: one total per alternative.
+            for (rank, a) in result.compare.iter().enumerate() {
+                let colour = LINE_COLOURS[rank % LINE_COLOURS.len()];
+                chart
+                    .draw_series(LineSeries::new(
+                        xs.iter().zip(&a.totals).map(|(&x, &v)| (x, y_of(v))),
+                        colour.stroke_width(3),
+                    ))
+                    .map_err(err)?
+                    .label(a.label())
+                    .legend(move |(x, y)| {
+                        PathElement::new(vec![(x, y), (x + 24, y)], colour.stroke_width(3))
+                    });
+            }
+        }
         if let Some(l) = result.limit {
             let label = if limit_shown.is_some() {
                 format!("limit {}", format_si(l, "V", 3))

@@ -99,6 +99,42 @@ pub fn check(scene: &Scene, lines_hz: &[f64]) -> String {
             }
         }
     }
+    for sh in &scene.shields {
+        let _ = writeln!(
+            out,
+            "\nshield {} (flat sheet, normal {})",
+            sh.id,
+            fmt_dir(&sh.normal)
+        );
+        for (m, t) in &sh.layers {
+            let _ = writeln!(
+                out,
+                "  {} {}: σ = {}, μr = {}",
+                si(*t, "m"),
+                m.name,
+                si(m.conductivity, "S/m"),
+                m.relative_permeability
+            );
+        }
+    }
+    for e in &scene.enclosures {
+        let _ = writeln!(
+            out,
+            "\nenclosure {} ({} × {} × {}, {} {}), around {}",
+            e.id,
+            si(e.size.x, "m"),
+            si(e.size.y, "m"),
+            si(e.size.z, "m"),
+            si(e.thickness, "m"),
+            e.material.name,
+            e.contains.join(", ")
+        );
+        let _ = writeln!(
+            out,
+            "  treated as a spherical shell of radius {} (an estimate; seams and holes do worse)",
+            si(e.equivalent_radius(), "m")
+        );
+    }
     let _ = writeln!(
         out,
         "\n{} spectral line{}; near-field limit λ/2π at {}: {}",
@@ -124,25 +160,28 @@ pub fn couple(scene: &Scene, reports: &[VictimReport]) -> String {
             plural(v.turns),
             format_area(v.area, 4)
         );
+        let shielded = crate::shield::scene_is_shielded(scene);
         for s in &r.sources {
             let _ = writeln!(
                 out,
-                "  from {}: mutual inductance M = {}",
+                "  from {}: mutual inductance M = {}{}",
                 s.id,
-                si(s.mutual_inductance, "H")
+                si(s.mutual_inductance, "H"),
+                if shielded { " without shields" } else { "" }
             );
-            let _ = writeln!(
+            let _ = write!(
                 out,
                 "    {:>12}  {:>12}  {:>12}  {:>12}  {:>8}",
                 "frequency", "current pk", "EMF pk", "EMF rms", "phase"
             );
+            let _ = writeln!(out, "{}", if shielded { "  shielding" } else { "" });
             for l in &s.lines {
                 let phase = if l.emf.norm() > 0.0 {
                     format!("{:>7.2}°", l.emf.arg().to_degrees())
                 } else {
                     format!("{:>8}", "-")
                 };
-                let _ = writeln!(
+                let _ = write!(
                     out,
                     "    {:>12}  {:>12}  {:>12}  {:>12}  {phase}",
                     si(l.frequency, "Hz"),
@@ -150,6 +189,10 @@ pub fn couple(scene: &Scene, reports: &[VictimReport]) -> String {
                     si(l.emf.norm(), "V"),
                     si(l.emf.norm() / std::f64::consts::SQRT_2, "V"),
                 );
+                if shielded {
+                    let _ = write!(out, "  {:>7.1} dB", l.shielding_db);
+                }
+                let _ = writeln!(out);
             }
         }
         let _ = write!(out, "  total EMF {} rms", si(r.total_rms, "V"));
@@ -322,6 +365,56 @@ pub fn sweeps(scene: &Scene, results: &[crate::sweep::SweepResult], written: &[S
     }
     if !written.is_empty() {
         let _ = writeln!(out, "\nwrote {}", written.join(", "));
+    }
+    out
+}
+
+/// `materials`: one row per material with its skin depth at each of `freqs` (Hz),
+/// then where each value comes from and the permeability caution.
+pub fn materials(list: &[crate::shield::material::Material], freqs: &[f64]) -> String {
+    use crate::shield::material::IACS;
+    let mut out = String::new();
+    let _ = write!(
+        out,
+        "{:<10}  {:>12}  {:>7}  {:>7}",
+        "material", "σ", "% IACS", "μr"
+    );
+    for f in freqs {
+        let _ = write!(out, "  {:>12}", format!("δ @ {}", format_si(*f, "Hz", 3)));
+    }
+    let _ = writeln!(out);
+    for m in list {
+        let _ = write!(
+            out,
+            "{:<10}  {:>12}  {:>7.1}  {:>7}",
+            m.name,
+            si(m.conductivity, "S/m"),
+            100.0 * m.conductivity / IACS,
+            m.relative_permeability
+        );
+        for f in freqs {
+            let _ = write!(out, "  {:>12}", si(m.skin_depth(*f), "m"));
+        }
+        let _ = writeln!(out);
+    }
+    let _ = writeln!(out, "\nskin depth δ = 1/√(π f μ0 μr σ)\nsources:");
+    for m in list {
+        let _ = writeln!(out, "  {}: {}", m.name, m.source);
+    }
+    let varies: Vec<&str> = list
+        .iter()
+        .filter(|m| m.permeability_varies)
+        .map(|m| m.name.as_str())
+        .collect();
+    if !varies.is_empty() {
+        let _ = writeln!(
+            out,
+            "\ncaution: the permeability of {} depends strongly on the field level, the \
+             frequency and the heat treatment (bending and machining lower it); the figure \
+             above is a low-field, low-frequency value. Use the supplier's data, or \
+             {{ conductivity, relative_permeability }} in the scene, for a real design.",
+            varies.join(" and ")
+        );
     }
     out
 }

@@ -125,8 +125,11 @@ fn victim_path(edges: &[crate::geometry::Edge]) -> Vec<Vec3> {
 }
 
 /// `scene.vtp`: every source wire and victim path as a polyline (cell data `element` =
-/// the element's index, sources first, then victims; point dipoles as a short segment
-/// along their moment), with field data `source:<id>` / `victim:<id>` = that index.
+/// the element's index, sources first, then victims, then shields and enclosures; point
+/// dipoles as a short segment along their moment), with field data `source:<id>` /
+/// `victim:<id>` / `shield:<id>` / `enclosure:<id>` = that index. A sheet is drawn as
+/// its two faces, squares 1.5 times the size of the rest of the scene (the model's
+/// sheet is infinite); an enclosure as the six faces of its box.
 pub fn scene_polydata(scene: &Scene, dipole_length: f64) -> Result<String, String> {
     let mut paths: Vec<(usize, Vec<Vec3>)> = Vec::new();
     let mut names = Vec::new();
@@ -157,6 +160,25 @@ pub fn scene_polydata(scene: &Scene, dipole_length: f64) -> Result<String, Strin
         offsets.push(connectivity.len() as u64);
         element.push(*idx as i32);
     }
+    // Shields as finite quads (cells after the lines, as VTK orders them).
+    let quads = shield_quads(scene, &paths);
+    let mut poly_conn = Vec::new();
+    let mut poly_offsets = Vec::new();
+    for (next, (name, faces)) in (base + scene.victims.len()..).zip(quads) {
+        for face in faces {
+            for p in face {
+                poly_conn.push((points.len() / 3) as u64);
+                points.extend_from_slice(&[p.x, p.y, p.z]);
+            }
+            poly_offsets.push(poly_conn.len() as u64);
+            element.push(next as i32);
+        }
+        names.push((name, next.to_string(), "Int32"));
+    }
+    let polys = (!poly_offsets.is_empty()).then_some(VertexNumbers::XML {
+        connectivity: poly_conn,
+        offsets: poly_offsets,
+    });
     let vtk = Vtk {
         version: Version::new_xml(1, 0),
         title: String::new(),
@@ -169,7 +191,7 @@ pub fn scene_polydata(scene: &Scene, dipole_length: f64) -> Result<String, Strin
                 connectivity,
                 offsets,
             }),
-            polys: None,
+            polys,
             strips: None,
             data: Attributes {
                 point: vec![],
@@ -178,6 +200,51 @@ pub fn scene_polydata(scene: &Scene, dipole_length: f64) -> Result<String, Strin
         }),
     };
     Ok(with_field_data(to_xml(vtk)?, "PolyData", &names))
+}
+
+/// Faces of every sheet and enclosure: (field-data name, quads of four corners in m).
+fn shield_quads(scene: &Scene, paths: &[(usize, Vec<Vec3>)]) -> Vec<(String, Vec<[Vec3; 4]>)> {
+    let all: Vec<Vec3> = paths.iter().flat_map(|p| p.1.iter().copied()).collect();
+    let (centre, radius) = crate::field::sphere_around(all.iter()).unwrap_or((Vec3::zeros(), 0.0));
+    let half = (1.5 * radius).max(0.01);
+    let mut out = Vec::new();
+    for sh in &scene.shields {
+        let u = crate::field::any_perpendicular(&sh.normal);
+        let v = sh.normal.cross(&u);
+        // The point of each face nearest the scene's centre.
+        let foot = centre - sh.normal * (centre - sh.origin).dot(&sh.normal);
+        let faces = [0.0, sh.thickness()]
+            .iter()
+            .map(|t| {
+                let c = foot + sh.normal * *t;
+                [
+                    c + (u + v) * half,
+                    c + (v - u) * half,
+                    c - (u + v) * half,
+                    c + (u - v) * half,
+                ]
+            })
+            .collect();
+        out.push((format!("shield:{}", sh.id), faces));
+    }
+    for e in &scene.enclosures {
+        let f = &e.frame;
+        let h = [
+            f.x * (e.size.x / 2.0),
+            f.y * (e.size.y / 2.0),
+            f.z * (e.size.z / 2.0),
+        ];
+        let mut faces = Vec::new();
+        for axis in 0..3 {
+            let (a, b) = (h[(axis + 1) % 3], h[(axis + 2) % 3]);
+            for sign in [-1.0, 1.0] {
+                let c = f.origin + h[axis] * sign;
+                faces.push([c + a + b, c - a + b, c - a - b, c + a - b]);
+            }
+        }
+        out.push((format!("enclosure:{}", e.id), faces));
+    }
+    out
 }
 
 /// A `.pvd` collection: each (frequency Hz, file name) as a dataset whose time value is

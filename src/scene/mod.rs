@@ -267,12 +267,21 @@ fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, In
         check_unique(&item, &e.id, &mut ids)?;
         enclosures.push(e);
     }
+    let shield_ids: Vec<&str> = shields.iter().map(|s| s.id.as_str()).collect();
     let mut sweeps = Vec::new();
     for item in array_of_tables(root, "sweep")? {
-        let s = sweep::parse(&item, &victims)?;
+        let s = sweep::parse(&item, &victims, &shield_ids)?;
         check_unique(&item, &s.id, &mut ids)?;
         if let Some(b) = &barrier {
             shield::check_sweep(&item, &s, b, &victims)?;
+        }
+        for sheet in shields
+            .iter()
+            .filter(|sh| s.compare.contains(&Some(sh.id.clone())))
+        {
+            if let Ok(alone) = crate::shield::barrier::Barrier::new(std::slice::from_ref(sheet)) {
+                shield::check_sweep(&item, &s, &alone, &victims)?;
+            }
         }
         sweeps.push(s);
     }
@@ -312,6 +321,24 @@ fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, In
     let mut scene = scene;
     scene.warnings.extend(extra);
     Ok(scene)
+}
+
+impl Scene {
+    /// The scene with only the sheet `id` fitted (`None`: no sheet), enclosures kept;
+    /// `None` if `id` names no sheet.
+    pub fn with_only_sheet(&self, id: Option<&str>) -> Option<Scene> {
+        let barrier = match id {
+            None => None,
+            Some(id) => {
+                let sheet = self.shields.iter().find(|s| s.id == id)?;
+                Some(crate::shield::barrier::Barrier::new(std::slice::from_ref(sheet)).ok()?)
+            }
+        };
+        Some(Scene {
+            barrier,
+            ..self.clone()
+        })
+    }
 }
 
 /// Number of distinct line frequencies over all sources.

@@ -115,8 +115,20 @@ pub(crate) fn parse_sheet(t: &Table<'_, '_>) -> Result<Sheet, InputError> {
             );
         }
     };
+    let fitted = match t.get("fitted") {
+        Some(v) => v.boolean()?,
+        None => true,
+    };
     t.finish(
-        &["id", "position", "axis", "material", "thickness", "layers"],
+        &[
+            "id",
+            "position",
+            "axis",
+            "material",
+            "thickness",
+            "layers",
+            "fitted",
+        ],
         "[[shield]]",
     )?;
     Ok(Sheet {
@@ -124,6 +136,7 @@ pub(crate) fn parse_sheet(t: &Table<'_, '_>) -> Result<Sheet, InputError> {
         origin,
         normal,
         layers,
+        fitted,
     })
 }
 
@@ -192,14 +205,32 @@ pub(crate) fn parse_shields(
     for t in tables {
         sheets.push(parse_sheet(t)?);
     }
-    if sheets.is_empty() {
+    // Every sheet alone must leave each source and victim on one side (sweeps may
+    // compare it alone); the fitted ones together must form one stack.
+    for (t, sheet) in tables.iter().zip(&sheets) {
+        let alone =
+            Barrier::new(std::slice::from_ref(sheet)).map_err(|(_, r)| t.error_at("axis", r))?;
+        check_sides(t, &alone, sources, victims)?;
+    }
+    let fitted: Vec<Sheet> = sheets.iter().filter(|s| s.fitted).cloned().collect();
+    if fitted.is_empty() {
         return Ok((sheets, None));
     }
+    let index: Vec<usize> = (0..sheets.len()).filter(|&i| sheets[i].fitted).collect();
     let barrier =
-        Barrier::new(&sheets).map_err(|(i, reason)| tables[i].error_at("axis", reason))?;
-    let at = &tables[0];
+        Barrier::new(&fitted).map_err(|(i, reason)| tables[index[i]].error_at("axis", reason))?;
+    check_sides(&tables[index[0]], &barrier, sources, victims)?;
+    Ok((sheets, Some(barrier)))
+}
+
+fn check_sides(
+    at: &Table<'_, '_>,
+    barrier: &Barrier,
+    sources: &[Source],
+    victims: &[Victim],
+) -> Result<(), InputError> {
     for s in sources {
-        side_of(&barrier, &source_points(s), &format!("source \"{}\"", s.id)).map_err(|r| {
+        side_of(barrier, &source_points(s), &format!("source \"{}\"", s.id)).map_err(|r| {
             at.error_at(
                 "position",
                 format!("{r}: a sheet may not cut a source; move the sheet or the source"),
@@ -208,7 +239,7 @@ pub(crate) fn parse_shields(
     }
     for v in victims {
         side_of(
-            &barrier,
+            barrier,
             &victim_points(&v.edges),
             &format!("victim \"{}\"", v.id),
         )
@@ -219,7 +250,7 @@ pub(crate) fn parse_shields(
             )
         })?;
     }
-    Ok((sheets, Some(barrier)))
+    Ok(())
 }
 
 /// Reads one `[[enclosure]]`.

@@ -56,6 +56,9 @@ pub struct SweepSpec {
     pub log: bool,
     /// Turn the victim to its worst-case orientation at every step.
     pub worst: bool,
+    /// Shield alternatives to compare (`compare`): each a shield id, or `None` for no
+    /// sheet at all; each gives one more curve with only that sheet fitted.
+    pub compare: Vec<Option<String>>,
 }
 
 impl SweepSpec {
@@ -84,7 +87,11 @@ impl SweepSpec {
 /// Largest number of steps a sweep may take (each step is a full coupling solve).
 const MAX_STEPS: u64 = 100_000;
 
-pub(crate) fn parse(t: &Table<'_, '_>, victims: &[Victim]) -> Result<SweepSpec, InputError> {
+pub(crate) fn parse(
+    t: &Table<'_, '_>,
+    victims: &[Victim],
+    shield_ids: &[&str],
+) -> Result<SweepSpec, InputError> {
     let id = parse_id(t)?;
     let vv = t.require("victim", "the id of the victim to sweep")?;
     let vid = vv.string()?;
@@ -143,8 +150,32 @@ pub(crate) fn parse(t: &Table<'_, '_>, victims: &[Victim]) -> Result<SweepSpec, 
         return Err(fv.error("frequencies must be greater than zero"));
     }
     let worst = t.one_of("orientation", &["as-placed", "worst"])? == "worst";
+    let mut compare = Vec::new();
+    if let Some(c) = t.get("compare") {
+        let items = c.array()?;
+        if items.is_empty() {
+            return Err(c.error("list shield ids to compare, and \"none\" for no sheet"));
+        }
+        for item in items {
+            let name = item.string()?;
+            if name == "none" {
+                compare.push(None);
+            } else if shield_ids.contains(&name) {
+                compare.push(Some(name.to_string()));
+            } else {
+                let mut known = shield_ids.to_vec();
+                known.push("none");
+                let hint = crate::scene::reader::did_you_mean(name, &known)
+                    .map(|s| format!("; did you mean \"{s}\"?"))
+                    .unwrap_or_default();
+                return Err(item.error(format!(
+                    "no shield has id \"{name}\" (give [[shield]] ids or \"none\"){hint}"
+                )));
+            }
+        }
+    }
     let context = format!("a sweep of {}", vary.name());
-    t.finish(&["along", "about"], &context)?;
+    t.finish(&["along", "about", "compare"], &context)?;
     Ok(SweepSpec {
         id,
         victim,
@@ -154,5 +185,6 @@ pub(crate) fn parse(t: &Table<'_, '_>, victims: &[Victim]) -> Result<SweepSpec, 
         steps: steps as usize,
         log,
         worst,
+        compare,
     })
 }

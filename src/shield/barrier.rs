@@ -18,6 +18,9 @@ pub struct Sheet {
     pub normal: Vec3,
     /// (material, thickness in m) from the first face.
     pub layers: Vec<(Material, f64)>,
+    /// Whether the sheet is in place (`fitted = false`: a design option that only
+    /// sweeps with `compare` use).
+    pub fitted: bool,
 }
 
 impl Sheet {

@@ -43,7 +43,7 @@ const BUILT_IN: &[(&str, f64, f64, &str, bool)] = &[
         "aluminium",
         3.5e7,
         1.0,
-        "about 61 % IACS, electrical-conductor grade aluminium (from memory); alloys such as \
+        "about 60 % IACS, electrical-conductor grade aluminium (from memory); alloys such as \
          6061 are nearer 2.5e7 S/m",
         false,
     ),

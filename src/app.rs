@@ -350,7 +350,13 @@ pub fn map(
     }
     let lines_hz = distinct_lines(&scene);
     let mut warnings = scene.warnings.clone();
-    let total: usize = chosen.iter().map(|m| m.point_count()).sum();
+    // Shielded maps tick once per source per point.
+    let per_point = if crate::shield::scene_is_shielded(&scene) {
+        scene.sources.len()
+    } else {
+        1
+    };
+    let total: usize = chosen.iter().map(|m| m.point_count() * per_point).sum();
     let done = std::sync::atomic::AtomicUsize::new(0);
     files::ensure_dir(out_dir)?;
     let mut written = Vec::new();
@@ -435,25 +441,15 @@ pub fn map(
     })
 }
 
-/// Shielded B phasors `[line][point]` at `points` for `freqs`, in chunks so that
-/// `tick(points done)` can report progress.
+/// Shielded B phasors `[line][point]` at `points` for `freqs`; `tick(points done)`
+/// reports progress (once per source per point).
 fn chunked_shielded(
     scene: &Scene,
     points: &[Vec3],
     freqs: &[f64],
     tick: &(dyn Fn(usize) + Sync),
 ) -> Result<Vec<Vec<[num_complex::Complex64; 3]>>, Error> {
-    const CHUNK: usize = 1 << 12;
-    let mut out: Vec<Vec<[num_complex::Complex64; 3]>> =
-        vec![Vec::with_capacity(points.len()); freqs.len()];
-    for chunk in points.chunks(CHUNK) {
-        let part = crate::shield::shielded_lines(scene, chunk, freqs).map_err(Error::Usage)?;
-        for (o, p) in out.iter_mut().zip(part) {
-            o.extend(p);
-        }
-        tick(chunk.len());
-    }
-    Ok(out)
+    crate::shield::shielded_lines(scene, points, freqs, tick).map_err(Error::Usage)
 }
 
 /// B per ampere of every source at `points`, in chunks so that `tick(points done)` can

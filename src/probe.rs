@@ -37,7 +37,7 @@ pub struct ProbePoint {
 pub fn probe(scene: &Scene, points: &[Vec3]) -> Result<Vec<ProbePoint>, String> {
     if crate::shield::scene_is_shielded(scene) {
         let freqs = frequencies(scene);
-        let lines = crate::shield::shielded_lines(scene, points, &freqs)?;
+        let lines = crate::shield::shielded_lines(scene, points, &freqs, &|_| {})?;
         return Ok(points
             .iter()
             .enumerate()

@@ -391,8 +391,15 @@ current = { peak = "1 A", frequency = "50 Hz" }
         "source[1].id",
         "not a valid id",
     );
-    let later = format!("{GOOD_SOURCE}[[shield]]\nid = \"plate\"\n");
-    assert_bad("later.toml", &later, 6, 3, "shield", "not supported yet");
+    let no_position = format!("{GOOD_SOURCE}[[shield]]\nid = \"plate\"\n");
+    assert_bad(
+        "shieldpos.toml",
+        &no_position,
+        6,
+        1,
+        "shield[1].position",
+        "missing key `position`",
+    );
     let no_source = "[scene]\ntitle = \"empty\"\n";
     assert_bad("nosource.toml", no_source, 1, 1, "", "no [[source]]");
     let top_typo = GOOD_SOURCE.replace("[[source]]", "[[sources]]");

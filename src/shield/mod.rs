@@ -129,7 +129,7 @@ pub fn flux_model(
 /// The scattered B (T per ampere, complex) of `conductors` (on `source_side`) at each
 /// point of `points` (each with its side) for each of `frequencies` (Hz):
 /// `[point][frequency][component]`. Add the free-space field for points on the
-/// source's side.
+/// source's side. `tick(points done)` reports progress.
 pub fn scattered_field(
     barrier: &Barrier,
     conductors: &Conductors,
@@ -137,6 +137,7 @@ pub fn scattered_field(
     points: &[(Vec3, bool)],
     frequencies: &[f64],
     tolerance: f64,
+    tick: &(dyn Fn(usize) + Sync),
 ) -> Result<Vec<Vec<[Complex64; 3]>>, String> {
     use rayon::prelude::*;
     if points.is_empty() {
@@ -154,10 +155,9 @@ pub fn scattered_field(
             ]
         })
         .collect();
-    Ok(points
-        .par_iter()
-        .with_min_len(4)
-        .map(|(p, side)| {
+    let mut out = Vec::with_capacity(points.len());
+    for chunk in points.chunks(1 << 10) {
+        out.par_extend(chunk.par_iter().with_min_len(4).map(|(p, side)| {
             let path = Barrier::path(source_side, *side);
             let terms = spectrum.field_terms(p, &frame, path);
             factors
@@ -172,9 +172,11 @@ pub fn scattered_field(
                     }
                     b
                 })
-                .collect()
-        })
-        .collect())
+                .collect::<Vec<_>>()
+        }));
+        tick(chunk.len());
+    }
+    Ok(out)
 }
 
 /// The enclosures that shield `victim_id` from a source at `source_points`: those
@@ -201,11 +203,12 @@ pub fn scene_is_shielded(scene: &crate::Scene) -> bool {
 /// summed. Free-space field on each source's own side plus the sheets' reflected
 /// field, the transmitted field beyond them, and inside an enclosure that does not hold
 /// the source the field divided by its shielding factor. Fails for points inside or
-/// between sheets.
+/// between sheets. `tick(points done)` reports progress, once per source per point.
 pub fn shielded_lines(
     scene: &crate::Scene,
     points: &[Vec3],
     frequencies: &[f64],
+    tick: &(dyn Fn(usize) + Sync),
 ) -> Result<Vec<Vec<[Complex64; 3]>>, String> {
     use crate::spectrum::same_frequency;
     let mut out = vec![vec![[Complex64::new(0.0, 0.0); 3]; points.len()]; frequencies.len()];
@@ -226,7 +229,10 @@ pub fn shielded_lines(
         let free = crate::field::b_at_points(&s.conductors, points);
         let src_points = crate::scene::source_points(s);
         let (s_side, scattered) = match &scene.barrier {
-            None => (false, None),
+            None => {
+                tick(points.len());
+                (false, None)
+            }
             Some(b) => {
                 let s_side = side_of(b, &src_points, &format!("source \"{}\"", s.id))?;
                 let targets: Vec<(Vec3, bool)> =
@@ -238,6 +244,7 @@ pub fn shielded_lines(
                     &targets,
                     frequencies,
                     scene.tolerance,
+                    tick,
                 )
                 .map_err(|why| format!("a field point {why}"))?;
                 (s_side, Some(f))

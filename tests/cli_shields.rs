@@ -1,0 +1,329 @@
+//! The command line with shields: every class of bad shield input gets exit 2 and one
+//! located line (README, "Commands", the bad-input table), and the outputs carry the
+//! shielding (SPEC.md: `shielding_db` per line, shields as quads in `scene.vtp`).
+
+mod cli_support;
+
+use cli_support::{run, stdout_json};
+use std::path::PathBuf;
+
+fn scene(name: &str, text: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("strayflux-cli-shields-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let p = dir.join(name);
+    std::fs::write(&p, text).unwrap();
+    p
+}
+
+/// A 10 mm loop at the origin driven at 100 kHz, a victim loop 20 mm above it.
+const BASE: &str = r#"[[source]]
+id = "coil"
+kind = "loop"
+radius = "10 mm"
+current = { frequency = "100 kHz", peak = "1 A" }
+
+[[victim]]
+id = "pickup"
+kind = "loop"
+radius = "5 mm"
+position = [0, 0, "20 mm"]
+limit = "1 mV"
+"#;
+
+fn sheet(id: &str, material: &str, thickness: &str, z_mm: f64, axis: &str) -> String {
+    format!(
+        "\n[[shield]]\nid = \"{id}\"\nmaterial = {material}\nthickness = \"{thickness}\"\n\
+         position = [0, 0, \"{z_mm} mm\"]\naxis = {axis}\n"
+    )
+}
+
+/// Runs `check`; asserts exit 2, nothing on stdout, one stderr line starting with
+/// `FILE:LINE:COL: key` and containing `words`.
+fn assert_bad(name: &str, text: &str, line: usize, key: &str, words: &str) {
+    let path = scene(name, text);
+    let out = run(&["check", path.to_str().unwrap()]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{name}: {err}");
+    assert!(out.stdout.is_empty(), "{name}: stdout not empty");
+    assert_eq!(err.trim_end().lines().count(), 1, "{name}: {err}");
+    let prefix = format!("{}:{line}:", path.display());
+    assert!(
+        err.starts_with(&prefix),
+        "{name}: expected `{prefix}`, got `{err}`"
+    );
+    assert!(
+        err.contains(&format!(": {key}: ")),
+        "{name}: key {key} in `{err}`"
+    );
+    assert!(err.contains(words), "{name}: expected `{words}` in `{err}`");
+}
+
+#[test]
+fn unknown_material_names_the_near_miss() {
+    let text = format!(
+        "{BASE}{}",
+        sheet("plate", "\"copperr\"", "1 mm", 8.0, "[0, 0, 1]")
+    );
+    assert_bad(
+        "mat.toml",
+        &text,
+        16,
+        "shield[1].material",
+        "did you mean \"copper\"",
+    );
+}
+
+#[test]
+fn zero_thickness_is_refused() {
+    let text = format!(
+        "{BASE}{}",
+        sheet("plate", "\"copper\"", "0 mm", 8.0, "[0, 0, 1]")
+    );
+    assert_bad(
+        "thick.toml",
+        &text,
+        17,
+        "shield[1].thickness",
+        "greater than zero",
+    );
+}
+
+#[test]
+fn a_sheet_through_the_source_is_refused() {
+    // The sheet fills z = -0.5 .. 0.5 mm: the source loop lies in it.
+    let text = format!(
+        "{BASE}{}",
+        sheet("plate", "\"copper\"", "1 mm", -0.5, "[0, 0, 1]")
+    );
+    assert_bad(
+        "cut.toml",
+        &text,
+        18,
+        "shield[1].position",
+        "source \"coil\"",
+    );
+}
+
+#[test]
+fn a_sheet_through_the_victim_is_refused() {
+    let text = format!(
+        "{BASE}{}",
+        sheet("plate", "\"copper\"", "1 mm", 19.5, "[0, 0, 1]")
+    );
+    assert_bad(
+        "cutv.toml",
+        &text,
+        18,
+        "shield[1].position",
+        "victim \"pickup\"",
+    );
+}
+
+#[test]
+fn sheets_must_be_parallel_and_must_not_overlap() {
+    let tilted = format!(
+        "{BASE}{}{}",
+        sheet("a", "\"copper\"", "1 mm", 8.0, "[0, 0, 1]"),
+        sheet("b", "\"copper\"", "1 mm", 12.0, "[0, 0.1, 1]")
+    );
+    assert_bad("tilt.toml", &tilted, 26, "shield[2].axis", "not parallel");
+    let overlapping = format!(
+        "{BASE}{}{}",
+        sheet("a", "\"copper\"", "2 mm", 8.0, "[0, 0, 1]"),
+        sheet("b", "\"copper\"", "1 mm", 9.0, "[0, 0, 1]")
+    );
+    assert_bad("over.toml", &overlapping, 26, "shield[2].axis", "overlaps");
+}
+
+#[test]
+fn a_custom_material_below_unit_permeability_is_refused() {
+    let text = format!(
+        "{BASE}{}",
+        sheet(
+            "plate",
+            "{ conductivity = \"1e7 S/m\", relative_permeability = 0.5 }",
+            "1 mm",
+            8.0,
+            "[0, 0, 1]"
+        )
+    );
+    assert_bad(
+        "mu.toml",
+        &text,
+        16,
+        "shield[1].material.relative_permeability",
+        "at least 1",
+    );
+}
+
+#[test]
+fn a_sweep_through_the_sheet_is_refused() {
+    let text = format!(
+        "{BASE}{}\n[[sweep]]\nid = \"s\"\nvictim = \"pickup\"\nvary = \"distance\"\n\
+         along = [0, 0, -1]\nfrom = \"1 mm\"\nto = \"15 mm\"\nsteps = 5\n",
+        sheet("plate", "\"copper\"", "1 mm", 8.0, "[0, 0, 1]")
+    );
+    assert_bad("sweep.toml", &text, 27, "sweep[1].to", "shield");
+}
+
+#[test]
+fn map_points_inside_a_sheet_are_refused() {
+    let text = format!(
+        "{BASE}{}\n[[map]]\nid = \"m\"\nkind = \"plane\"\nmin = [\"-5 mm\", 0, \"0 mm\"]\n\
+         max = [\"5 mm\", 0, \"12 mm\"]\nstep = \"1 mm\"\n",
+        sheet("plate", "\"copper\"", "1 mm", 8.0, "[0, 0, 1]")
+    );
+    assert_bad("map.toml", &text, 21, "map[1]", "inside shield \"plate\"");
+}
+
+#[test]
+fn a_victim_outside_its_enclosure_is_refused() {
+    let text = format!(
+        "{BASE}\n[[enclosure]]\nid = \"can\"\nsize = [\"4 mm\", \"4 mm\", \"4 mm\"]\n\
+         position = [0, 0, \"20 mm\"]\nmaterial = \"steel\"\nthickness = \"0.3 mm\"\n\
+         contains = [\"pickup\"]\n"
+    );
+    assert_bad(
+        "box.toml",
+        &text,
+        20,
+        "enclosure[1].contains",
+        "not inside enclosure",
+    );
+}
+
+#[test]
+fn compare_with_an_unknown_shield_names_the_near_miss() {
+    let text = format!(
+        "{BASE}{}\n[[sweep]]\nid = \"s\"\nvictim = \"pickup\"\nvary = \"frequency\"\n\
+         from = \"1 kHz\"\nto = \"1 MHz\"\nsteps = 4\ncompare = [\"none\", \"plait\"]\n",
+        sheet("plate", "\"copper\"", "1 mm", 8.0, "[0, 0, 1]")
+    );
+    assert_bad(
+        "cmp.toml",
+        &text,
+        28,
+        "sweep[1].compare[2]",
+        "did you mean \"plate\"",
+    );
+}
+
+#[test]
+fn couple_reports_shielding_per_line_and_the_free_space_m() {
+    // 1 mm copper at 100 kHz (δ = 0.21 mm): the plate must cut the EMF by tens of dB;
+    // M stays the free-space value, and |EMF| = ωM|I| / 10^(dB/20) (SPEC.md).
+    let shielded = scene(
+        "cu.toml",
+        &format!(
+            "{BASE}{}",
+            sheet("plate", "\"copper\"", "1 mm", 8.0, "[0, 0, 1]")
+        ),
+    );
+    let free = scene("free.toml", BASE);
+    let s = stdout_json(&run(&["couple", shielded.to_str().unwrap(), "--json"]));
+    let f = stdout_json(&run(&["couple", free.to_str().unwrap(), "--json"]));
+    let src = &s["victims"][0]["sources"][0];
+    let line = &src["lines"][0];
+    let db = line["shielding_db"].as_f64().unwrap();
+    let m_s = src["mutual_inductance_h"].as_f64().unwrap();
+    let m_f = f["victims"][0]["sources"][0]["mutual_inductance_h"]
+        .as_f64()
+        .unwrap();
+    assert_eq!(m_s, m_f);
+    assert!(db > 20.0, "copper 1 mm at 100 kHz gave only {db} dB");
+    let emf = line["emf_v_peak"].as_f64().unwrap();
+    let want = std::f64::consts::TAU * 1e5 * m_f / 10f64.powf(db / 20.0);
+    assert!((emf / want - 1.0).abs() < 1e-9, "{emf} vs {want}");
+    assert_eq!(
+        f["victims"][0]["sources"][0]["lines"][0]["shielding_db"].as_f64(),
+        Some(0.0)
+    );
+}
+
+#[test]
+fn materials_prints_the_skin_depth_of_copper() {
+    // δ = 1/√(π f μ0 σ) for copper (58 MS/m) at 60 Hz is 8.53 mm (PHYSICS.md §6: ≈ 8.5 mm).
+    let out = run(&["materials", "--frequency", "60 Hz"]);
+    assert_eq!(out.status.code(), Some(0));
+    let text = String::from_utf8_lossy(&out.stdout);
+    let copper = text.lines().find(|l| l.starts_with("copper")).unwrap();
+    assert!(copper.contains("8.532 mm"), "{copper}");
+    assert!(
+        text.contains("caution"),
+        "the permeability caution is missing"
+    );
+    let bad = run(&["materials", "--frequency", "-1 Hz"]);
+    assert_eq!(bad.status.code(), Some(2));
+}
+
+#[test]
+fn scene_vtp_draws_sheets_and_enclosures_as_quads() {
+    let text = format!(
+        "{BASE}{}\n[[enclosure]]\nid = \"can\"\nsize = [\"14 mm\", \"14 mm\", \"6 mm\"]\n\
+         position = [0, 0, \"20 mm\"]\nmaterial = \"steel\"\nthickness = \"0.3 mm\"\n\
+         contains = [\"pickup\"]\n\n[[map]]\nid = \"m\"\nkind = \"plane\"\n\
+         min = [\"-5 mm\", 0, \"12 mm\"]\nmax = [\"5 mm\", 0, \"16 mm\"]\nstep = \"1 mm\"\n",
+        sheet("plate", "\"aluminium\"", "1 mm", 8.0, "[0, 0, 1]")
+    );
+    let path = scene("vtp.toml", &text);
+    let dir = std::env::temp_dir().join(format!("strayflux-vtp-{}", std::process::id()));
+    let out = run(&[
+        "map",
+        path.to_str().unwrap(),
+        "--out",
+        dir.to_str().unwrap(),
+    ]);
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let xml = std::fs::read_to_string(dir.join("scene.vtp")).unwrap();
+    let doc = roxmltree::Document::parse(&xml).unwrap();
+    let piece = doc.descendants().find(|n| n.has_tag_name("Piece")).unwrap();
+    // Two faces for the sheet, six for the box.
+    assert_eq!(piece.attribute("NumberOfPolys"), Some("8"));
+    assert!(xml.contains("shield:plate") && xml.contains("enclosure:can"));
+}
+
+#[test]
+fn a_compared_sweep_writes_one_column_per_alternative() {
+    let text = format!(
+        "{BASE}{}{}\n[[sweep]]\nid = \"cmp\"\nvictim = \"pickup\"\nvary = \"frequency\"\n\
+         from = \"100 Hz\"\nto = \"1 MHz\"\nsteps = 5\ncompare = [\"none\", \"al\", \"cu\"]\n",
+        sheet("al", "\"aluminium\"", "1 mm", 8.0, "[0, 0, 1]"),
+        sheet("cu", "\"copper\"", "35 um", 8.0, "[0, 0, 1]")
+            .replace("axis", "fitted = false\naxis")
+    );
+    let path = scene("cmp-ok.toml", &text);
+    let dir = std::env::temp_dir().join(format!("strayflux-cmp-{}", std::process::id()));
+    let out = run(&[
+        "sweep",
+        path.to_str().unwrap(),
+        "--out",
+        dir.to_str().unwrap(),
+        "--json",
+    ]);
+    let doc = stdout_json(&out);
+    let cmp = doc["sweeps"][0]["compare"].as_array().unwrap();
+    assert_eq!(cmp.len(), 3);
+    assert!(cmp[0]["shield"].is_null());
+    // The fitted sheet is "al": the main totals equal its alternative's.
+    let rows = doc["sweeps"][0]["rows"].as_array().unwrap();
+    for (k, r) in rows.iter().enumerate() {
+        assert_eq!(r["total_emf_v_rms"], cmp[1]["total_emf_v_rms"][k]);
+        // No sheet at all couples at least as much as either sheet at every step (a
+        // passive conducting sheet only removes flux here; common practice).
+        let none = cmp[0]["total_emf_v_rms"][k].as_f64().unwrap();
+        for alt in &cmp[1..] {
+            assert!(alt["total_emf_v_rms"][k].as_f64().unwrap() <= none * (1.0 + 1e-9));
+        }
+    }
+    let csv = std::fs::read_to_string(dir.join("cmp.csv")).unwrap();
+    let header = csv.lines().next().unwrap();
+    assert!(
+        header
+            .ends_with("total_emf_v_rms_no_shield,total_emf_v_rms_with_al,total_emf_v_rms_with_cu")
+    );
+}

@@ -5,6 +5,7 @@
 //!   points (2e6 pairs per iteration).
 //! * `sweep/1000steps-2000seg`: a 1000-step distance sweep of a 10 × 5 mm rectangular
 //!   victim past a 2000-segment polygon source (the target: well under 1 s).
+//! * `shielded/couple-demo`: a shielded `couple` of one victim (see [`shielded`]).
 
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
 use std::hint::black_box;
@@ -96,5 +97,25 @@ fn sweep(c: &mut Criterion) {
     g.finish();
 }
 
-criterion_group!(benches, kernels, sweep);
+/// `shielded/couple-demo`: `couple` of the demo scene `scenes/shield-options.toml` (a
+/// 4400-segment helix, a 20 × 8 mm victim, 1 mm aluminium between; the target:
+/// under a second), and the same at the default tolerance 1e-6.
+fn shielded(c: &mut Criterion) {
+    let path = concat!(env!("CARGO_MANIFEST_DIR"), "/scenes/shield-options.toml");
+    let text = std::fs::read_to_string(path).expect("demo scene");
+    let scene = Scene::parse(path, &text).expect("demo scene is valid");
+    let fine = Scene::parse(path, &text.replace("tolerance = 1e-5", "tolerance = 1e-6"))
+        .expect("demo scene is valid");
+    let mut g = c.benchmark_group("shielded");
+    g.sample_size(10);
+    g.bench_function("couple-demo", |b| {
+        b.iter(|| black_box(strayflux::coupling::couple_victim(&scene, &scene.victims[0]).ok()))
+    });
+    g.bench_function("couple-demo-tol1e-6", |b| {
+        b.iter(|| black_box(strayflux::coupling::couple_victim(&fine, &fine.victims[0]).ok()))
+    });
+    g.finish();
+}
+
+criterion_group!(benches, kernels, sweep, shielded);
 criterion_main!(benches);

@@ -41,7 +41,8 @@ use crate::geometry::Edge;
 use crate::quadrature::gauss_legendre;
 use num_complex::Complex64;
 use rayon::prelude::*;
-use std::f64::consts::PI;
+use rustfft::FftPlanner;
+use std::f64::consts::{PI, TAU};
 use wide::f64x4;
 
 /// Which part of the stack's response reaches a target.
@@ -109,6 +110,35 @@ impl LocalSource {
                 .map(|d| (f.local(&d.position), f.local_dir(&d.moment_per_amp)))
                 .collect(),
         }
+    }
+
+    /// The same conductors moved laterally by (−cx, −cy).
+    fn shifted(&self, cx: f64, cy: f64) -> LocalSource {
+        let d = Vec3::new(cx, cy, 0.0);
+        LocalSource {
+            wires: self
+                .wires
+                .iter()
+                .map(|(v, w)| (v.iter().map(|p| p - d).collect(), *w))
+                .collect(),
+            dipoles: self.dipoles.iter().map(|(p, m)| (p - d, *m)).collect(),
+        }
+    }
+
+    /// Lateral centre (x, y) of the conductors' bounding box and the largest lateral
+    /// distance from it, m.
+    fn lateral_disc(&self) -> (f64, f64, f64) {
+        let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
+        for p in self.points() {
+            lo = [lo[0].min(p.x), lo[1].min(p.y)];
+            hi = [hi[0].max(p.x), hi[1].max(p.y)];
+        }
+        let (cx, cy) = (0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1]));
+        let r = self
+            .points()
+            .map(|p| (p.x - cx).hypot(p.y - cy))
+            .fold(0.0, f64::max);
+        (cx, cy, r)
     }
 
     fn points(&self) -> impl Iterator<Item = &Vec3> {
@@ -186,34 +216,45 @@ impl LocalSource {
     }
 }
 
-/// Directions over the half circle, padded to a multiple of four lanes; `mask` is 1 for
-/// real directions and 0 for the padding.
+/// Directions, padded to a multiple of four lanes; `mask` is 1 for real directions and
+/// 0 for the padding.
 struct Dirs {
     cos: Vec<f64x4>,
     sin: Vec<f64x4>,
     mask: Vec<f64>,
 }
 
+impl Dirs {
+    fn new(angles: &[f64]) -> Dirs {
+        let lanes = angles.len().div_ceil(4);
+        let mut c = vec![0.0; 4 * lanes];
+        let mut s = vec![0.0; 4 * lanes];
+        let mut mask = vec![0.0; 4 * lanes];
+        for j in 0..4 * lanes {
+            let th = angles[j.min(angles.len() - 1)];
+            (s[j], c[j]) = th.sin_cos();
+            mask[j] = if j < angles.len() { 1.0 } else { 0.0 };
+        }
+        let pack = |v: &[f64]| -> Vec<f64x4> {
+            v.chunks(4)
+                .map(|q| f64x4::from([q[0], q[1], q[2], q[3]]))
+                .collect()
+        };
+        Dirs {
+            cos: pack(&c),
+            sin: pack(&s),
+            mask,
+        }
+    }
+}
+
+/// The half circle of the full uniform grid of 2·`n_half` angles: θ_j = πj/n_half.
+fn half_angles(n_half: usize) -> Vec<f64> {
+    (0..n_half).map(|j| PI * j as f64 / n_half as f64).collect()
+}
+
 fn directions(n_half: usize) -> Dirs {
-    let lanes = n_half.div_ceil(4);
-    let mut c = vec![0.0; 4 * lanes];
-    let mut s = vec![0.0; 4 * lanes];
-    let mut mask = vec![0.0; 4 * lanes];
-    for j in 0..4 * lanes {
-        let th = PI * (j.min(n_half - 1) as f64 + 0.5) / n_half as f64;
-        (s[j], c[j]) = th.sin_cos();
-        mask[j] = if j < n_half { 1.0 } else { 0.0 };
-    }
-    let pack = |v: &[f64]| -> Vec<f64x4> {
-        v.chunks(4)
-            .map(|q| f64x4::from([q[0], q[1], q[2], q[3]]))
-            .collect()
-    };
-    Dirs {
-        cos: pack(&c),
-        sin: pack(&s),
-        mask,
-    }
+    Dirs::new(&half_angles(n_half))
 }
 
 /// Four lanes of ∫₀¹ e^{c0 + Δs} ds from e0 = e^{c0}, e1 = e^{c0+Δ} and Δ (re, im):
@@ -363,15 +404,46 @@ impl SourceSpectrum {
     /// b̂ of `conductors` (per ampere) seen from `frame`, at the nodes of `plan`.
     pub fn new(conductors: &Conductors, frame: &SideFrame, plan: Plan) -> Self {
         let src = LocalSource::new(conductors, frame);
+        let (cx, cy, rs) = src.lateral_disc();
+        let centred = src.shifted(cx, cy);
         let zs: Vec<f64> = src.points().map(|p| p.z).collect();
         let parts: Vec<Vec<Complex64>> = plan
             .radial
             .par_iter()
             .map(|r| {
-                let dirs = directions(r.n_half);
                 let decay: Vec<f64> = zs.iter().map(|z| (r.k * z).exp()).collect();
-                let mut out = vec![Complex64::new(0.0, 0.0); 4 * dirs.cos.len()];
-                src.spectrum(r.k, &dirs, &decay, &mut out);
+                let lanes = r.n_half.div_ceil(4);
+                let mut out = vec![Complex64::new(0.0, 0.0); 4 * lanes];
+                // About its own lateral centre the source's amplitudes vary with θ only
+                // up to order k·r_s (Jacobi–Anger): sample them on that few angles, and
+                // interpolate exactly (zero-padded FFT) to the fine grid the targets
+                // need.
+                let krs = r.k * rs;
+                let mut n_s = (krs + 8.0 * krs.cbrt() + 16.0).ceil() as usize;
+                n_s |= 1;
+                let n_f = 2 * r.n_half;
+                if n_s >= n_f {
+                    src.spectrum(r.k, &directions(r.n_half), &decay, &mut out);
+                    return out;
+                }
+                let angles: Vec<f64> = (0..n_s).map(|m| TAU * m as f64 / n_s as f64).collect();
+                let mut coarse = vec![Complex64::new(0.0, 0.0); 4 * n_s.div_ceil(4)];
+                centred.spectrum(r.k, &Dirs::new(&angles), &decay, &mut coarse);
+                coarse.truncate(n_s);
+                let mut planner = FftPlanner::<f64>::new();
+                planner.plan_fft_forward(n_s).process(&mut coarse);
+                let mut fine = vec![Complex64::new(0.0, 0.0); n_f];
+                let h = (n_s - 1) / 2;
+                for (n, c) in coarse.iter().enumerate() {
+                    let at = if n <= h { n } else { n_f - (n_s - n) };
+                    fine[at] = *c / n_s as f64;
+                }
+                planner.plan_fft_inverse(n_f).process(&mut fine);
+                for (j, (o, th)) in out.iter_mut().zip(half_angles(r.n_half)).enumerate() {
+                    let (s, c) = th.sin_cos();
+                    let shift = Complex64::from_polar(1.0, -r.k * (cx * c + cy * s));
+                    *o = fine[j] * shift;
+                }
                 out
             })
             .collect();

@@ -48,6 +48,9 @@ pub fn couple(
     plot_dir: Option<&Path>,
 ) -> Result<Outcome, Error> {
     let scene = Scene::load(path)?;
+    if let Some(dir) = plot_dir {
+        files::ensure_dir(dir)?;
+    }
     let reports: Vec<VictimReport> = scene
         .victims
         .iter()
@@ -78,7 +81,6 @@ pub fn couple(
                 Err(why) => warnings.push(why),
             }
         }
-        files::ensure_dir(dir)?;
         for (p, svg) in &files {
             files::write_atomic(p, svg.as_bytes())?;
         }
@@ -243,6 +245,7 @@ pub fn sweep(
             path.display()
         )));
     }
+    files::ensure_dir(out_dir)?;
     let total_steps: usize = chosen.iter().map(|s| s.steps * (1 + s.compare.len())).sum();
     let done = std::sync::atomic::AtomicUsize::new(0);
     let tick = || {
@@ -270,7 +273,6 @@ pub fn sweep(
     // The scene's geometry too, so the sweep can be looked at in ParaView.
     let vtp = crate::output::vtk::scene_polydata(&scene, 0.005).map_err(Error::Run)?;
     outputs.push((out_dir.join("scene.vtp"), vtp));
-    files::ensure_dir(out_dir)?;
     let mut written = Vec::new();
     for (p, text) in &outputs {
         files::write_atomic(p, text.as_bytes())?;

@@ -1,5 +1,6 @@
 //! The `strayflux` command: parse flags, run a command from the library, print, and set
-//! the exit status (0 done, 1 failure, 2 bad input, 3 over the limit with --strict).
+//! the exit status (0 done, 1 failure, 2 bad input, 3 over the limit with --strict, 130
+//! interrupted by Ctrl-C).
 
 use clap::{Parser, Subcommand};
 use std::io::Write;
@@ -161,6 +162,13 @@ fn progress_bar() -> Option<indicatif::ProgressBar> {
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
+    // Ctrl-C: drop any half-written temporary file (final names hold either the earlier
+    // result or a complete new one) and stop with the conventional status 130.
+    let _ = ctrlc::set_handler(|| {
+        strayflux::output::files::remove_pending();
+        eprintln!("strayflux: interrupted; no partial output was left under a final name");
+        std::process::exit(130);
+    });
     let result = match &cli.command {
         Command::Check { scene, json } => app::check(scene, *json),
         Command::Couple {

@@ -129,7 +129,8 @@ fn victim_path(edges: &[crate::geometry::Edge]) -> Vec<Vec3> {
 /// dipoles as a short segment along their moment), with field data `source:<id>` /
 /// `victim:<id>` / `shield:<id>` / `enclosure:<id>` = that index. A sheet is drawn as
 /// its two faces, squares 1.5 times the size of the rest of the scene (the model's
-/// sheet is infinite); an enclosure as the six faces of its box.
+/// sheet is infinite; sheets with `fitted = false` are left out); an enclosure as the
+/// six faces of its box.
 pub fn scene_polydata(scene: &Scene, dipole_length: f64) -> Result<String, String> {
     let mut paths: Vec<(usize, Vec<Vec3>)> = Vec::new();
     let mut names = Vec::new();
@@ -208,7 +209,7 @@ fn shield_quads(scene: &Scene, paths: &[(usize, Vec<Vec3>)]) -> Vec<(String, Vec
     let (centre, radius) = crate::field::sphere_around(all.iter()).unwrap_or((Vec3::zeros(), 0.0));
     let half = (1.5 * radius).max(0.01);
     let mut out = Vec::new();
-    for sh in &scene.shields {
+    for sh in scene.shields.iter().filter(|s| s.fitted) {
         let u = crate::field::any_perpendicular(&sh.normal);
         let v = sh.normal.cross(&u);
         // The point of each face nearest the scene's centre.

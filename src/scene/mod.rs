@@ -317,7 +317,9 @@ fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, In
         let centre = v.frame.origin;
         extra.extend(scene.far_point_warning(&format!("victim \"{}\"", v.id), &centre));
         extra.extend(contact_warning(&scene, v));
+        extra.extend(inside_winding_warning(&scene, v));
     }
+    extra.extend(shield_warnings(&scene));
     let mut scene = scene;
     scene.warnings.extend(extra);
     Ok(scene)
@@ -468,6 +470,76 @@ pub(crate) fn parse_frame(t: &Table<'_, '_>) -> Result<Frame, InputError> {
             None => t.error_at("axis", "cannot build a frame from this axis"),
         }),
     }
+}
+
+/// Winding kinds: a victim within their extent sits among the turns.
+const WINDINGS: &[&str] = &["helix", "toroid", "spiral", "saddle"];
+
+fn inside_winding_warning(scene: &Scene, v: &Victim) -> Option<String> {
+    let c = v.frame.origin;
+    for s in scene
+        .sources
+        .iter()
+        .filter(|s| WINDINGS.contains(&s.kind.as_str()))
+    {
+        let f = &s.frame;
+        let local = |p: &Vec3| {
+            let d = p - f.origin;
+            Vec3::new(d.dot(&f.x), d.dot(&f.y), d.dot(&f.z))
+        };
+        let (mut lo, mut hi) = (Vec3::repeat(f64::INFINITY), Vec3::repeat(f64::NEG_INFINITY));
+        for p in s.conductors.wires.iter().flat_map(|w| w.vertices.iter()) {
+            let q = local(p);
+            lo = lo.inf(&q);
+            hi = hi.sup(&q);
+        }
+        let q = local(&c);
+        let inside = (0..3).all(|k| q[k] > lo[k] && q[k] < hi[k]);
+        if inside {
+            return Some(format!(
+                "victim \"{}\" sits inside the extent of winding \"{}\": its EMF depends on \
+                 exactly where it lies among the turns, which are modelled as thin filaments",
+                v.id, s.id
+            ));
+        }
+    }
+    None
+}
+
+/// Shield results outside the model: a conductivity so low that displacement current
+/// matters at the highest line (σ < 100 ωε0), and enclosures far from the sphere the
+/// estimate assumes (edge ratio over 3).
+fn shield_warnings(scene: &Scene) -> Vec<String> {
+    const EPS0: f64 = 8.854_187_8128e-12; // F/m, CODATA 2018
+    let omega = std::f64::consts::TAU * scene.highest_frequency();
+    let mut out = Vec::new();
+    for sh in &scene.shields {
+        for (m, _) in &sh.layers {
+            if m.conductivity > 0.0 && m.conductivity < 100.0 * omega * EPS0 {
+                out.push(format!(
+                    "shield \"{}\": at {} the {} layer's conductivity {} is under 100 ωε0, \
+                     so its displacement current is not negligible and the quasi-static \
+                     sheet model may not hold",
+                    sh.id,
+                    crate::units::format_si(scene.highest_frequency(), "Hz", 4),
+                    m.name,
+                    crate::units::format_si(m.conductivity, "S/m", 3)
+                ));
+            }
+        }
+    }
+    for e in &scene.enclosures {
+        let ratio = e.size.max() / e.size.min();
+        if ratio > 3.0 {
+            out.push(format!(
+                "enclosure \"{}\" is {ratio:.1} times longer than it is thin: the \
+                 equal-volume sphere overstates what such a box does (it is closer to an open \
+                 tube along its length)",
+                e.id
+            ));
+        }
+    }
+    out
 }
 
 fn contact_warning(scene: &Scene, v: &Victim) -> Option<String> {

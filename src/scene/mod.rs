@@ -510,7 +510,7 @@ fn inside_winding_warning(scene: &Scene, v: &Victim) -> Option<String> {
 /// matters at the highest line (σ < 100 ωε0), and enclosures far from the sphere the
 /// estimate assumes (edge ratio over 3).
 fn shield_warnings(scene: &Scene) -> Vec<String> {
-    const EPS0: f64 = 8.854_187_8128e-12; // F/m, CODATA 2018
+    const EPS0: f64 = 8.854_187_812_8e-12; // F/m, CODATA 2018
     let omega = std::f64::consts::TAU * scene.highest_frequency();
     let mut out = Vec::new();
     for sh in &scene.shields {

@@ -371,7 +371,10 @@ pub(crate) fn check_sweep(
         if placed.is_some_and(|p| p != side) {
             return Err(t.error_at(
                 "to",
-                format!("{what} has passed through the shields: a sweep stays on one side of them"),
+                format!(
+                    "{what} has passed through the shields: end the sweep before the sheet \
+                     (a sweep stays on one side of them)"
+                ),
             ));
         }
     }

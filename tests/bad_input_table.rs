@@ -1,0 +1,322 @@
+//! The README's bad-input table, row by row: each row has one case here that runs the
+//! binary on the bad input and checks exit status 2, nothing on stdout, exactly one line
+//! on stderr, the `FILE:LINE:COL: ` location (for file input) and the words the README
+//! promises. `every_readme_row_has_a_case` fails when a row is added without a case.
+
+mod cli_support;
+
+use cli_support::run;
+use std::path::PathBuf;
+
+const SOURCE: &str = r#"[[source]]
+id = "s"
+kind = "loop"
+radius = "8 mm"
+current = { waveform = "sine", peak = "1 A", frequency = "50 Hz" }
+"#;
+
+const VICTIM: &str = r#"
+[[victim]]
+id = "pickup"
+kind = "loop"
+radius = "5 mm"
+position = [0, 0, "20 mm"]
+"#;
+
+fn plate(z_mm: f64, extra: &str) -> String {
+    format!(
+        "\n[[shield]]\nid = \"plate\"\nmaterial = \"copper\"\nthickness = \"1 mm\"\n\
+         position = [0, 0, \"{z_mm} mm\"]\naxis = [0, 0, 1]\n{extra}"
+    )
+}
+
+/// One row: the scene text (or raw bytes), extra files beside it, the command
+/// (`{scene}` and `{dir}` are substituted), the file the location must name (the scene
+/// unless given), and words of the message.
+struct Case {
+    row: &'static str,
+    scene: Vec<u8>,
+    extra: Vec<(&'static str, String)>,
+    args: &'static [&'static str],
+    located_in: Option<&'static str>,
+    words: &'static str,
+}
+
+fn case(row: &'static str, scene: String, words: &'static str) -> Case {
+    Case {
+        row,
+        scene: scene.into_bytes(),
+        extra: vec![],
+        args: &["check", "{scene}"],
+        located_in: Some("{scene}"),
+        words,
+    }
+}
+
+fn cases() -> Vec<Case> {
+    let sv = format!("{SOURCE}{VICTIM}");
+    vec![
+        case("misspelt or unknown key", SOURCE.replace("radius", "radus"), "did you mean `radius`"),
+        case("missing key", SOURCE.replace("radius = \"8 mm\"\n", ""), "missing key `radius`"),
+        case("wrong unit", SOURCE.replace("\"8 mm\"", "\"8 kHz\""), "is a frequency, expected a length"),
+        case("wrong type", SOURCE.replace("\"8 mm\"", "true"), "found a boolean"),
+        case("NaN or infinity", SOURCE.replace("\"8 mm\"", "nan"), "not a finite number"),
+        case("zero or negative size", SOURCE.replace("\"8 mm\"", "\"-8 mm\""), "must be greater than zero"),
+        case(
+            "zero direction",
+            format!("{SOURCE}axis = [0, 0, 0]\n"),
+            "the zero vector has no direction",
+        ),
+        case(
+            "reference along the axis",
+            format!("{SOURCE}axis = [0, 0, 1]\nreference = [0, 0, 2]\n"),
+            "is parallel to `axis`",
+        ),
+        case("duplicate id", format!("{SOURCE}{}", SOURCE), "is already used"),
+        case(
+            "reference to an unknown id",
+            format!(
+                "{sv}\n[[sweep]]\nid = \"sw\"\nvictim = \"pickupp\"\nvary = \"distance\"\n\
+                 along = [0, 0, 1]\nfrom = \"1 mm\"\nto = \"10 mm\"\nsteps = 3\n"
+            ),
+            "no victim has id \"pickupp\"",
+        ),
+        case(
+            "a winding too large",
+            "[[source]]\nid = \"c\"\nkind = \"helix\"\nradius = \"10 mm\"\nlength = \"40 mm\"\n\
+             turns = 100000000\ncurrent = { frequency = \"1 kHz\", peak = \"1 A\" }\n"
+                .to_string(),
+            "turns, got 100000000",
+        ),
+        Case {
+            row: "a `file` source with a bad row",
+            scene: "[[source]]\nid = \"c\"\nkind = \"file\"\npath = \"route.csv\"\n\
+                    current = { frequency = \"1 kHz\", peak = \"1 A\" }\n"
+                .into(),
+            extra: vec![("route.csv", "x,y,z\n0,0,0\n1,0,0\n1,abc,0\n".into())],
+            args: &["check", "{scene}"],
+            located_in: Some("{dir}/route.csv"),
+            words: "\"abc\" is not a number",
+        },
+        case(
+            "degenerate polygon",
+            SOURCE
+                .replace("kind = \"loop\"", "kind = \"polygon\"")
+                .replace("radius = \"8 mm\"", "vertices = [[0, 0, 0], [0.01, 0, 0], [0.02, 0, 0]]"),
+            "colinear",
+        ),
+        case(
+            "zero-length segment",
+            SOURCE
+                .replace("kind = \"loop\"", "kind = \"polygon\"")
+                .replace(
+                    "radius = \"8 mm\"",
+                    "vertices = [[0, 0, 0], [0.01, 0, 0], [0.01, 0, 0], [0, 0.01, 0]]",
+                ),
+            "zero-length segment",
+        ),
+        case(
+            "wire thicker than the shape",
+            SOURCE.replace("\"8 mm\"", "\"0.1 mm\"\nwire_radius = \"0.2 mm\""),
+            "wire diameter",
+        ),
+        case(
+            "two amplitudes",
+            SOURCE.replace("peak = \"1 A\"", "peak = \"1 A\", rms = \"0.7 A\""),
+            "give only one of",
+        ),
+        case(
+            "trapezoid edges that do not fit",
+            SOURCE.replace(
+                "waveform = \"sine\", peak = \"1 A\", frequency = \"50 Hz\"",
+                "waveform = \"trapezoid\", peak = \"1 A\", frequency = \"1 MHz\", rise = \"0.6 us\", fall = \"0.5 us\"",
+            ),
+            "is longer than the period",
+        ),
+        case("not TOML / not UTF-8", "[[source]\nid = 1\n".to_string(), "not valid TOML"),
+        case(
+            "unknown material",
+            format!("{sv}{}", plate(8.0, "").replace("\"copper\"", "\"copperr\"")),
+            "did you mean \"copper\"",
+        ),
+        case(
+            "zero shield thickness",
+            format!("{sv}{}", plate(8.0, "").replace("\"1 mm\"", "\"0 mm\"")),
+            "must be greater than zero",
+        ),
+        case(
+            "a sheet through a source or victim",
+            format!("{sv}{}", plate(-0.5, "")),
+            "a sheet may not cut a source",
+        ),
+        case(
+            "sheets that are not parallel, or overlap",
+            format!(
+                "{sv}{}{}",
+                plate(8.0, ""),
+                plate(12.0, "").replace("\"plate\"", "\"b\"").replace("[0, 0, 1]", "[0, 0.2, 1]")
+            ),
+            "not parallel",
+        ),
+        case(
+            "a sweep that passes through a sheet",
+            format!(
+                "{sv}{}\n[[sweep]]\nid = \"sw\"\nvictim = \"pickup\"\nvary = \"distance\"\n\
+                 along = [0, 0, -1]\nfrom = \"1 mm\"\nto = \"15 mm\"\nsteps = 5\n",
+                plate(8.0, "")
+            ),
+            "end the sweep before the sheet",
+        ),
+        case(
+            "map points inside a sheet",
+            format!(
+                "{sv}{}\n[[map]]\nid = \"m\"\nkind = \"plane\"\nmin = [\"-5 mm\", 0, \"0 mm\"]\n\
+                 max = [\"5 mm\", 0, \"12 mm\"]\nstep = \"1 mm\"\n",
+                plate(8.0, "")
+            ),
+            "has grid points inside shield",
+        ),
+        case(
+            "a victim outside its enclosure",
+            format!(
+                "{sv}\n[[enclosure]]\nid = \"can\"\nsize = [\"4 mm\", \"4 mm\", \"4 mm\"]\n\
+                 position = [0, 0, \"20 mm\"]\nmaterial = \"steel\"\nthickness = \"0.3 mm\"\n\
+                 contains = [\"pickup\"]\n"
+            ),
+            "is not inside enclosure",
+        ),
+        case(
+            "a sweep or map that cannot run",
+            format!(
+                "{sv}\n[[sweep]]\nid = \"sw\"\nvictim = \"pickup\"\nvary = \"distance\"\n\
+                 along = [1, 0, 0]\nfrom = \"1 mm\"\nto = \"1 mm\"\nsteps = 3\n"
+            ),
+            "the sweep would cover no range",
+        ),
+        Case {
+            row: "a map too large for memory",
+            scene: format!(
+                "{SOURCE}\n[[map]]\nid = \"m\"\nkind = \"box\"\nmin = [\"-1 m\", \"-1 m\", \"-1 m\"]\n\
+                 max = [\"1 m\", \"1 m\", \"1 m\"]\ncells = [600, 600, 600]\n"
+            )
+            .into_bytes(),
+            extra: vec![],
+            args: &["map", "{scene}", "--out", "{dir}/out", "--max-memory", "1 GiB"],
+            located_in: None,
+            words: "of memory, more than the limit",
+        },
+        Case {
+            row: "probe point on a wire",
+            scene: SOURCE.as_bytes().to_vec(),
+            extra: vec![],
+            args: &["probe", "{scene}", "--at", "8,0,0 mm"],
+            located_in: None,
+            words: "lies inside the wire of source \"s\"",
+        },
+        Case {
+            row: "bad `--at` or CSV row",
+            scene: SOURCE.as_bytes().to_vec(),
+            extra: vec![],
+            args: &["probe", "{scene}", "--at", "1,2"],
+            located_in: None,
+            words: "expected three coordinates",
+        },
+    ]
+}
+
+fn readme_rows() -> Vec<String> {
+    let readme =
+        std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/README.md")).unwrap();
+    let mut rows = Vec::new();
+    let mut inside = false;
+    for line in readme.lines() {
+        if line.starts_with("| bad input | example message |") {
+            inside = true;
+            continue;
+        }
+        if inside {
+            if !line.starts_with('|') {
+                break;
+            }
+            if line.starts_with("|---") {
+                continue;
+            }
+            rows.push(line.split('|').nth(1).unwrap().trim().to_string());
+        }
+    }
+    rows
+}
+
+#[test]
+fn every_readme_row_has_a_case() {
+    let rows = readme_rows();
+    assert!(
+        rows.len() >= 20,
+        "the README table was not found ({} rows)",
+        rows.len()
+    );
+    let cases = cases();
+    for r in &rows {
+        assert!(
+            cases.iter().any(|c| c.row == r),
+            "README row `{r}` has no case"
+        );
+    }
+    for c in &cases {
+        assert!(
+            rows.iter().any(|r| r == c.row),
+            "case `{}` is not a README row",
+            c.row
+        );
+    }
+}
+
+#[test]
+fn every_row_gives_exit_two_and_one_located_line() {
+    let base = std::env::temp_dir().join(format!("strayflux-table-{}", std::process::id()));
+    for (i, c) in cases().into_iter().enumerate() {
+        let dir: PathBuf = base.join(format!("case{i}"));
+        std::fs::create_dir_all(&dir).unwrap();
+        let scene = dir.join("scene.toml");
+        std::fs::write(&scene, &c.scene).unwrap();
+        for (name, text) in &c.extra {
+            std::fs::write(dir.join(name), text).unwrap();
+        }
+        let sub = |a: &str| {
+            a.replace("{scene}", scene.to_str().unwrap())
+                .replace("{dir}", dir.to_str().unwrap())
+        };
+        let args: Vec<String> = c.args.iter().map(|a| sub(a)).collect();
+        let argv: Vec<&str> = args.iter().map(String::as_str).collect();
+        let out = run(&argv);
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{}: {err}", c.row);
+        assert!(out.stdout.is_empty(), "{}: stdout not empty", c.row);
+        assert_eq!(err.trim_end().lines().count(), 1, "{}: {err}", c.row);
+        assert!(
+            err.contains(c.words),
+            "{}: expected `{}` in `{err}`",
+            c.row,
+            c.words
+        );
+        assert!(!err.contains("panicked"), "{}: {err}", c.row);
+        if let Some(file) = c.located_in {
+            let prefix = format!("{}:", sub(file));
+            assert!(
+                err.starts_with(&prefix),
+                "{}: expected `{prefix}LINE:COL:` in `{err}`",
+                c.row
+            );
+            let rest = &err[prefix.len()..];
+            let mut parts = rest.splitn(3, ':');
+            let line: usize = parts.next().unwrap().parse().unwrap_or(0);
+            let col: usize = parts.next().unwrap_or("").parse().unwrap_or(0);
+            assert!(line >= 1 && col >= 1, "{}: no LINE:COL in `{err}`", c.row);
+        }
+        assert!(
+            !dir.join("out").exists(),
+            "{}: an output folder was created",
+            c.row
+        );
+    }
+}

@@ -3,6 +3,8 @@
 //!
 //! * `potential/2000seg` and `field/2000seg`: A and B of a 2000-segment polygon at 1000
 //!   points (2e6 pairs per iteration).
+//! * `bound/sqrt+div`: 2e6 square roots and divisions, four-wide on every thread: the
+//!   machine's own bound for the field kernel (one of each per pair), in the same units.
 //! * `sweep/1000steps-2000seg`: a 1000-step distance sweep of a 10 × 5 mm rectangular
 //!   victim past a 2000-segment polygon source (the target: well under 1 s).
 //! * `shielded/couple-demo`: a shielded `couple` of one victim (see [`shielded`]).
@@ -49,7 +51,33 @@ fn kernels(c: &mut Criterion) {
     g.bench_function("field/2000seg", |b| {
         b.iter(|| black_box(b_at_points(&wire, &pts)))
     });
+    // The physical bound of the field kernel: one square root and one division per
+    // segment–point pair, four-wide, on every thread, with nothing else to do.
+    let xs: Vec<f64> = (0..2_000_000)
+        .map(|k| 1.0 + (k % 1000) as f64 * 1e-3)
+        .collect();
+    g.bench_function("bound/sqrt+div", |b| b.iter(|| black_box(sqrt_div(&xs))));
     g.finish();
+}
+
+/// Σ (x + 1)/√x over `xs` with four-wide SIMD, in parallel chunks: one square root and
+/// one division per element.
+fn sqrt_div(xs: &[f64]) -> f64 {
+    use rayon::prelude::*;
+    use wide::f64x4;
+    xs.par_chunks(1 << 14)
+        .map(|c| {
+            let mut acc = [f64x4::ZERO; 4];
+            let one = f64x4::splat(1.0);
+            for q in c.chunks_exact(16) {
+                for (j, a) in acc.iter_mut().enumerate() {
+                    let x = f64x4::from([q[4 * j], q[4 * j + 1], q[4 * j + 2], q[4 * j + 3]]);
+                    *a += (x + one) / x.sqrt();
+                }
+            }
+            (acc[0] + acc[1] + acc[2] + acc[3]).reduce_add()
+        })
+        .sum()
 }
 
 fn sweep_scene() -> Scene {

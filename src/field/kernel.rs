@@ -221,3 +221,70 @@ fn segment_fields<F: Fn(usize, f64, f64) -> Vec3>(
     }
     sum
 }
+
+/// Σ of the segments' B (without μ0/4π) at four points at once, one per SIMD lane: the
+/// segments stream past while the points stay in registers, and each vertex distance
+/// is computed once and carried to the next segment, so every segment–point pair costs
+/// one square root and one division. `careful(k, lane)` gives segment `k`'s B at point
+/// `lane` where the closed form is unsafe (inside the wire, or where Ri+Rf−L loses
+/// digits). Each lane's sum runs in segment order, so a point's result does not depend
+/// on the other points of its block.
+pub(crate) fn field_block<F: Fn(usize, usize) -> Vec3>(
+    soa: &Soa,
+    pts: &[Vec3; 4],
+    a2: f64,
+    careful: F,
+) -> [Vec3; 4] {
+    let m = soa.segments();
+    let rx = f64x4::from([pts[0].x, pts[1].x, pts[2].x, pts[3].x]);
+    let ry = f64x4::from([pts[0].y, pts[1].y, pts[2].y, pts[3].y]);
+    let rz = f64x4::from([pts[0].z, pts[1].z, pts[2].z, pts[3].z]);
+    let (mut bx, mut by, mut bz) = (f64x4::ZERO, f64x4::ZERO, f64x4::ZERO);
+    let mut extra = [Vec3::zeros(); 4];
+    if m == 0 {
+        return extra;
+    }
+    let (two, hundredth, wire2) = (f64x4::splat(2.0), f64x4::splat(0.01), f64x4::splat(a2));
+    let mut dx = rx - f64x4::splat(soa.x[0]);
+    let mut dy = ry - f64x4::splat(soa.y[0]);
+    let mut dz = rz - f64x4::splat(soa.z[0]);
+    let mut ri = (dx * dx + dy * dy + dz * dz).sqrt();
+    for k in 0..m {
+        let nx = rx - f64x4::splat(soa.x[k + 1]);
+        let ny = ry - f64x4::splat(soa.y[k + 1]);
+        let nz = rz - f64x4::splat(soa.z[k + 1]);
+        let rf = (nx * nx + ny * ny + nz * nz).sqrt();
+        let (ex, ey, ez) = (
+            f64x4::splat(soa.ex[k]),
+            f64x4::splat(soa.ey[k]),
+            f64x4::splat(soa.ez[k]),
+        );
+        let l = f64x4::splat(soa.len[k]);
+        // ê × (r − a)
+        let cx = ey * dz - ez * dy;
+        let cy = ez * dx - ex * dz;
+        let cz = ex * dy - ey * dx;
+        let rho2 = cx * cx + cy * cy + cz * cz;
+        let s = ri + rf;
+        let u = s - l;
+        let safe = rho2.simd_ge(wire2) & u.simd_gt(l * hundredth);
+        let mut factor = two * l * s / (ri * rf * u * (s + l));
+        if !safe.all() {
+            let mut lanes = factor.to_array();
+            let ok = safe.to_bitmask();
+            for (lane, value) in lanes.iter_mut().enumerate() {
+                if ok & (1 << lane) == 0 {
+                    *value = 0.0;
+                    extra[lane] += careful(k, lane);
+                }
+            }
+            factor = f64x4::from(lanes);
+        }
+        bx += cx * factor;
+        by += cy * factor;
+        bz += cz * factor;
+        (dx, dy, dz, ri) = (nx, ny, nz, rf);
+    }
+    let (bx, by, bz) = (bx.to_array(), by.to_array(), bz.to_array());
+    std::array::from_fn(|lane| Vec3::new(bx[lane], by[lane], bz[lane]) + extra[lane])
+}

@@ -12,7 +12,7 @@
 //! meet there. Within the wire radius the field of a round conductor carrying uniform
 //! current is used instead, so no point gives NaN or infinity.
 
-use super::kernel::{Soa, field_sum, log_sum};
+use super::kernel::{Soa, field_block, field_sum, log_sum};
 use super::{FieldSource, MU0_OVER_4PI, Vec3};
 
 /// A filament path carrying `weight` amperes per ampere of source current.
@@ -118,6 +118,21 @@ impl FieldSource for Polyline {
             r_i = r_f;
         }
         sum * (MU0_OVER_4PI * self.weight)
+    }
+
+    fn b_block(&self, pts: &[Vec3; 4]) -> [Vec3; 4] {
+        if self.soa.segments() != self.segment_count() {
+            return pts.map(|p| self.b_per_amp(&p));
+        }
+        let a2 = self.wire_radius * self.wire_radius;
+        let careful = |seg: usize, lane: usize| {
+            let (d_i, d_f) = (
+                pts[lane] - self.vertices[seg],
+                pts[lane] - self.vertices[seg + 1],
+            );
+            segment_b(&d_i, d_i.norm(), &d_f, d_f.norm(), a2)
+        };
+        field_block(&self.soa, pts, a2, careful).map(|b| b * (MU0_OVER_4PI * self.weight))
     }
 
     fn a_per_amp(&self, r: &Vec3) -> Vec3 {

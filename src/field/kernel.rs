@@ -10,7 +10,7 @@
 
 use super::Vec3;
 use std::cell::RefCell;
-use wide::f64x4;
+use wide::{f64x2, f64x4};
 
 /// A polyline's geometry laid out for the vector kernel.
 #[derive(Clone, Debug, Default)]
@@ -235,31 +235,44 @@ pub(crate) fn field_block<F: Fn(usize, usize) -> Vec3>(
     a2: f64,
     careful: F,
 ) -> [Vec3; 4] {
+    // Two passes of two lanes: with 128-bit vectors the whole loop state then stays in
+    // the sixteen registers (four lanes at once spill to the stack).
+    let lo = field_pair(soa, [pts[0], pts[1]], a2, &careful);
+    let hi = field_pair(soa, [pts[2], pts[3]], a2, |k, lane| careful(k, lane + 2));
+    [lo[0], lo[1], hi[0], hi[1]]
+}
+
+fn field_pair<F: Fn(usize, usize) -> Vec3>(
+    soa: &Soa,
+    pts: [Vec3; 2],
+    a2: f64,
+    careful: F,
+) -> [Vec3; 2] {
     let m = soa.segments();
-    let rx = f64x4::from([pts[0].x, pts[1].x, pts[2].x, pts[3].x]);
-    let ry = f64x4::from([pts[0].y, pts[1].y, pts[2].y, pts[3].y]);
-    let rz = f64x4::from([pts[0].z, pts[1].z, pts[2].z, pts[3].z]);
-    let (mut bx, mut by, mut bz) = (f64x4::ZERO, f64x4::ZERO, f64x4::ZERO);
-    let mut extra = [Vec3::zeros(); 4];
+    let rx = f64x2::from([pts[0].x, pts[1].x]);
+    let ry = f64x2::from([pts[0].y, pts[1].y]);
+    let rz = f64x2::from([pts[0].z, pts[1].z]);
+    let (mut bx, mut by, mut bz) = (f64x2::ZERO, f64x2::ZERO, f64x2::ZERO);
+    let mut extra = [Vec3::zeros(); 2];
     if m == 0 {
         return extra;
     }
-    let (two, hundredth, wire2) = (f64x4::splat(2.0), f64x4::splat(0.01), f64x4::splat(a2));
-    let mut dx = rx - f64x4::splat(soa.x[0]);
-    let mut dy = ry - f64x4::splat(soa.y[0]);
-    let mut dz = rz - f64x4::splat(soa.z[0]);
+    let (two, hundredth, wire2) = (f64x2::splat(2.0), f64x2::splat(0.01), f64x2::splat(a2));
+    let mut dx = rx - f64x2::splat(soa.x[0]);
+    let mut dy = ry - f64x2::splat(soa.y[0]);
+    let mut dz = rz - f64x2::splat(soa.z[0]);
     let mut ri = (dx * dx + dy * dy + dz * dz).sqrt();
     for k in 0..m {
-        let nx = rx - f64x4::splat(soa.x[k + 1]);
-        let ny = ry - f64x4::splat(soa.y[k + 1]);
-        let nz = rz - f64x4::splat(soa.z[k + 1]);
+        let nx = rx - f64x2::splat(soa.x[k + 1]);
+        let ny = ry - f64x2::splat(soa.y[k + 1]);
+        let nz = rz - f64x2::splat(soa.z[k + 1]);
         let rf = (nx * nx + ny * ny + nz * nz).sqrt();
         let (ex, ey, ez) = (
-            f64x4::splat(soa.ex[k]),
-            f64x4::splat(soa.ey[k]),
-            f64x4::splat(soa.ez[k]),
+            f64x2::splat(soa.ex[k]),
+            f64x2::splat(soa.ey[k]),
+            f64x2::splat(soa.ez[k]),
         );
-        let l = f64x4::splat(soa.len[k]);
+        let l = f64x2::splat(soa.len[k]);
         // ê × (r − a)
         let cx = ey * dz - ez * dy;
         let cy = ez * dx - ex * dz;
@@ -269,16 +282,16 @@ pub(crate) fn field_block<F: Fn(usize, usize) -> Vec3>(
         let u = s - l;
         let safe = rho2.simd_ge(wire2) & u.simd_gt(l * hundredth);
         let mut factor = two * l * s / (ri * rf * u * (s + l));
-        if !safe.all() {
+        let ok = safe.to_bitmask();
+        if ok != 0b11 {
             let mut lanes = factor.to_array();
-            let ok = safe.to_bitmask();
             for (lane, value) in lanes.iter_mut().enumerate() {
                 if ok & (1 << lane) == 0 {
                     *value = 0.0;
                     extra[lane] += careful(k, lane);
                 }
             }
-            factor = f64x4::from(lanes);
+            factor = f64x2::from(lanes);
         }
         bx += cx * factor;
         by += cy * factor;

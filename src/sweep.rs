@@ -56,7 +56,7 @@ pub struct Alternative {
 }
 
 impl Alternative {
-    /// A legend label: "no shield" or "<id>".
+    /// A legend label: "no shield" or the sheet's id.
     pub fn label(&self) -> String {
         match &self.shield {
             None => "no shield".to_string(),

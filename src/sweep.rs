@@ -23,7 +23,14 @@ pub struct SweepRow {
     pub total_rms: f64,
     /// With `orientation = "worst"`: the loop normal that maximises the EMF.
     pub worst_axis: Option<Vec3>,
+    /// With shields: 20·log10(|EMF without| / |EMF with|) of each distinct frequency,
+    /// dB, in the order of `lines`; empty without shields.
+    pub shielding_db: Vec<f64>,
 }
+
+/// Per-frequency EMF phasors (Hz, V peak), the total rms (V), and with shields the
+/// shielding of each frequency (dB).
+pub type VictimEmf = (Vec<(f64, Complex64)>, f64, Vec<f64>);
 
 /// A finished sweep.
 #[derive(Clone, Debug)]
@@ -111,7 +118,7 @@ pub fn victim_emf(
     scene: &Scene,
     victim: &Victim,
     lines: &[Vec<Line>],
-) -> Result<(Vec<(f64, Complex64)>, f64), String> {
+) -> Result<VictimEmf, String> {
     let models: Vec<PairModel> = scene
         .sources
         .iter()
@@ -127,7 +134,7 @@ fn emf_from_models(
     models: &[PairModel],
     victim: &Victim,
     lines: &[Vec<Line>],
-) -> (Vec<(f64, Complex64)>, f64) {
+) -> VictimEmf {
     let couplings: Vec<SourceCoupling> = scene
         .sources
         .iter()
@@ -137,7 +144,23 @@ fn emf_from_models(
         .collect();
     let by_f = emf_by_frequency(&couplings);
     let total = total_rms(&by_f);
-    (by_f, total)
+    let shielding = if models.iter().any(PairModel::is_shielded) {
+        let free: Vec<SourceCoupling> = scene
+            .sources
+            .iter()
+            .zip(models)
+            .zip(lines)
+            .map(|((s, m), l)| SourceCoupling::new(&s.id, victim.turns * m.flux, l, true))
+            .collect();
+        emf_by_frequency(&free)
+            .iter()
+            .zip(&by_f)
+            .map(|(f, s)| crate::coupling::shielding_db(f.1.norm(), s.1.norm()))
+            .collect()
+    } else {
+        Vec::new()
+    };
+    (by_f, total, shielding)
 }
 
 /// The total for the orientation search: NaN where a shield cannot be solved (a tilted
@@ -168,15 +191,17 @@ fn row_at(
     let step = step_at(scene, spec, x);
     if spec.worst {
         let o = worst(scene, &step.victim, &step.lines);
-        let (lines, total) = victim_emf(scene, &step.victim.facing(&o.normal), &step.lines)?;
+        let (lines, total, shielding_db) =
+            victim_emf(scene, &step.victim.facing(&o.normal), &step.lines)?;
         Ok(SweepRow {
             value: x,
             lines,
             total_rms: total,
             worst_axis: Some(o.normal),
+            shielding_db,
         })
     } else {
-        let (lines, total) = match models {
+        let (lines, total, shielding_db) = match models {
             Some(m) => emf_from_models(scene, m, &step.victim, &step.lines),
             None => victim_emf(scene, &step.victim, &step.lines)?,
         };
@@ -185,6 +210,7 @@ fn row_at(
             lines,
             total_rms: total,
             worst_axis: None,
+            shielding_db,
         })
     }
 }

@@ -316,6 +316,11 @@ fn a_compared_sweep_writes_one_column_per_alternative() {
         // No sheet at all couples at least as much as either sheet at every step (a
         // passive conducting sheet only removes flux here; common practice).
         let none = cmp[0]["total_emf_v_rms"][k].as_f64().unwrap();
+        // One line: its shielding is the ratio of the totals without and with the sheet
+        // (SPEC.md's definition of shielding_db).
+        let fitted = cmp[1]["total_emf_v_rms"][k].as_f64().unwrap();
+        let db = r["shielding_db"][0].as_f64().unwrap();
+        assert!((db - 20.0 * (none / fitted).log10()).abs() < 1e-9, "{db}");
         for alt in &cmp[1..] {
             assert!(alt["total_emf_v_rms"][k].as_f64().unwrap() <= none * (1.0 + 1e-9));
         }

@@ -21,7 +21,8 @@ pub fn value_in_unit(vary: &Vary, v: f64) -> f64 {
     }
 }
 
-/// The sweep as CSV: the swept value, every line's EMF (rms, V), the total, the margin
+/// The sweep as CSV: the swept value, every line's EMF (rms, V), with shields every
+/// line's shielding (dB), the total, the margin
 /// (dB, empty without a limit), for worst-case sweeps the worst axis, and with
 /// `compare` the total with each shield alternative.
 pub fn sweep_csv(result: &SweepResult) -> String {
@@ -38,6 +39,19 @@ pub fn sweep_csv(result: &SweepResult) -> String {
             let _ = write!(out, ",line{}_emf_v_rms", k + 1);
         } else {
             let _ = write!(out, ",emf_v_rms_at_{}_hz", trim_float(*f));
+        }
+    }
+    let shielded = result
+        .rows
+        .first()
+        .is_some_and(|r| !r.shielding_db.is_empty());
+    if shielded {
+        for (k, (f, _)) in first.iter().enumerate() {
+            if matches!(vary, Vary::Frequency) {
+                let _ = write!(out, ",line{}_shielding_db", k + 1);
+            } else {
+                let _ = write!(out, ",shielding_db_at_{}_hz", trim_float(*f));
+            }
         }
     }
     out.push_str(",total_emf_v_rms,margin_db");
@@ -61,6 +75,11 @@ pub fn sweep_csv(result: &SweepResult) -> String {
                 .get(k)
                 .map_or(0.0, |l| l.1.norm() / std::f64::consts::SQRT_2);
             let _ = write!(out, ",{e:e}");
+        }
+        if shielded {
+            for k in 0..first.len() {
+                let _ = write!(out, ",{:.4}", r.shielding_db.get(k).copied().unwrap_or(0.0));
+            }
         }
         let _ = write!(out, ",{:e},", r.total_rms);
         if let Some(l) = result.limit {

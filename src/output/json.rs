@@ -204,6 +204,8 @@ struct SweepJsonRow {
     total_emf_v_rms: f64,
     #[serde(skip_serializing_if = "Option::is_none")]
     worst_axis: Option<[f64; 3]>,
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    shielding_db: Vec<f64>,
 }
 
 /// `sweep --json`: values in `unit` (m for distance, deg for angle, Hz for frequency).
@@ -230,6 +232,7 @@ pub fn sweeps(results: &[crate::sweep::SweepResult]) -> String {
                         value: value_in_unit(vary, row.value),
                         total_emf_v_rms: row.total_rms,
                         worst_axis: row.worst_axis.map(|a| [a.x, a.y, a.z]),
+                        shielding_db: row.shielding_db.clone(),
                     })
                     .collect(),
                 compare: r

@@ -583,13 +583,17 @@ fn edge_touches(e: &Edge, gap: &dyn Fn(&Vec3) -> f64) -> bool {
         stack.push((prev.0, prev.1, t, g, 0));
         prev = (t, g);
     }
+    // A budget of gap evaluations keeps absurd geometry (a 1e200 m edge) from taking
+    // forever; within it, every crossing of a wire is found.
+    let mut budget = 4096;
     while let Some((t0, g0, t1, g1, depth)) = stack.pop() {
         if g0 <= 0.0 || g1 <= 0.0 {
             return true;
         }
-        if g0.min(g1) > 0.5 * len * (t1 - t0) || depth >= 40 {
+        if g0.min(g1) > 0.5 * len * (t1 - t0) || depth >= 40 || budget == 0 {
             continue;
         }
+        budget -= 1;
         let tm = 0.5 * (t0 + t1);
         let gm = gap(&e.point(tm));
         stack.push((t0, g0, tm, gm, depth + 1));

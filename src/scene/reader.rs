@@ -12,6 +12,9 @@ use std::ops::Range;
 use toml::Spanned;
 use toml::de::{DeTable, DeValue};
 
+/// Largest length (m) a scene may give: 1000 km.
+pub const MAX_LENGTH: f64 = 1e6;
+
 /// The file being read: its name for messages and where its lines start.
 pub struct Doc {
     name: String,
@@ -282,16 +285,28 @@ impl<'a, 'i> Value<'a, 'i> {
     }
 
     /// A quantity of dimension `dim`: a bare number in SI units or `"<number> <unit>"`.
+    /// Lengths beyond [`MAX_LENGTH`] are refused: no scene of strayflux spans them, and
+    /// areas and inductances computed from them would overflow.
     pub fn quantity(&self, dim: Dimension) -> Result<f64, InputError> {
-        match self.value {
-            DeValue::String(s) => parse_quantity(s, dim).map_err(|e| self.error(e.0)),
-            DeValue::Integer(_) | DeValue::Float(_) => self.number(),
-            _ => Err(self.type_error(&format!(
-                "{} such as {} (or a bare number in SI units)",
-                dim.noun(),
-                dim.example()
-            ))),
+        let x = match self.value {
+            DeValue::String(s) => parse_quantity(s, dim).map_err(|e| self.error(e.0))?,
+            DeValue::Integer(_) | DeValue::Float(_) => self.number()?,
+            _ => {
+                return Err(self.type_error(&format!(
+                    "{} such as {} (or a bare number in SI units)",
+                    dim.noun(),
+                    dim.example()
+                )));
+            }
+        };
+        if dim == Dimension::Length && x.abs() > MAX_LENGTH {
+            return Err(self.error(format!(
+                "{} is more than 1000 km: strayflux models near fields at the scale of \
+                 boards, equipment and rooms",
+                self.raw()
+            )));
         }
+        Ok(x)
     }
 
     /// A quantity that must be strictly positive.

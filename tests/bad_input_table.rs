@@ -88,6 +88,11 @@ fn cases() -> Vec<Case> {
                 .to_string(),
             "turns, got 100000000",
         ),
+        case(
+            "an absurd length",
+            SOURCE.replace("\"8 mm\"", "1e200"),
+            "is more than 1000 km",
+        ),
         Case {
             row: "a `file` source with a bad row",
             scene: "[[source]]\nid = \"c\"\nkind = \"file\"\npath = \"route.csv\"\n\

@@ -20,14 +20,38 @@ pub struct InputError {
 
 impl fmt::Display for InputError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let reason = self.reason.replace('\n', " ");
+        // One line whatever the input held: line breaks in the reason become spaces,
+        // other control characters (a quoted key may hold them) are shown escaped.
+        let one_line = |s: &str| -> String {
+            s.replace('\n', " ")
+                .chars()
+                .flat_map(|c| {
+                    if c.is_control() {
+                        c.escape_debug().collect::<Vec<_>>()
+                    } else {
+                        vec![c]
+                    }
+                })
+                .collect()
+        };
+        let reason = one_line(&self.reason);
         if self.key.is_empty() {
             write!(f, "{}:{}:{}: {}", self.file, self.line, self.col, reason)
         } else {
+            let key = self
+                .key
+                .chars()
+                .flat_map(|c| c.escape_debug())
+                .collect::<String>();
+            let key = if self.key.chars().any(char::is_control) {
+                key
+            } else {
+                self.key.clone()
+            };
             write!(
                 f,
                 "{}:{}:{}: {}: {}",
-                self.file, self.line, self.col, self.key, reason
+                self.file, self.line, self.col, key, reason
             )
         }
     }

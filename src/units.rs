@@ -237,13 +237,24 @@ fn split_number(text: &str) -> Option<(f64, &str)> {
 /// The unit must measure `dim`; the number must be finite. A string with no unit is
 /// refused (write a bare TOML number for SI base units).
 pub fn parse_quantity(text: &str, dim: Dimension) -> Result<f64, UnitError> {
+    // Messages quote the text: control characters are shown escaped so they stay on
+    // one line.
+    let shown = |s: &str| -> String {
+        if s.chars().any(char::is_control) {
+            s.escape_debug().to_string()
+        } else {
+            s.to_string()
+        }
+    };
     let Some((number, symbol)) = split_number(text) else {
+        let text = shown(text);
         return Err(UnitError(format!(
             "\"{text}\" is not a quantity; write {} {}",
             dim.noun(),
             dim.example()
         )));
     };
+    let (text, symbol) = (&shown(text), &shown(symbol));
     if symbol.is_empty() {
         return Err(UnitError(format!(
             "\"{text}\" has no unit; write {} {} or a bare number in SI units",

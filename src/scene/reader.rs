@@ -310,8 +310,16 @@ impl<'a, 'i> Value<'a, 'i> {
     }
 
     /// A quantity that must be strictly positive.
+    /// Sizes (lengths) under 1 nm are refused as well: logarithms and reciprocals of
+    /// them overflow in inductances and fields.
     pub fn positive(&self, dim: Dimension) -> Result<f64, InputError> {
         let x = self.quantity(dim)?;
+        if dim == Dimension::Length && x > 0.0 && x < 1e-9 {
+            return Err(self.error(format!(
+                "{} is under 1 nm: too small for a conductor or a loop",
+                self.raw()
+            )));
+        }
         if x > 0.0 {
             Ok(x)
         } else {

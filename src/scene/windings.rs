@@ -43,6 +43,23 @@ fn positive<'a, 'i>(
     Ok((v.positive(Dimension::Length)?, v))
 }
 
+/// Most straight segments one source may have: about 0.6 GB of geometry.
+const MAX_SEGMENTS: f64 = 1e7;
+
+/// Refuses, at `v`, a winding of `turns` full turns (at `tolerance`) that would need more
+/// than [`MAX_SEGMENTS`] segments.
+fn check_segments(v: &Value<'_, '_>, turns: f64, tolerance: f64) -> Result<(), InputError> {
+    let n = turns * crate::geometry::circle_segments(tolerance) as f64;
+    if n.is_finite() && n <= MAX_SEGMENTS {
+        return Ok(());
+    }
+    Err(v.error(format!(
+        "this winding would need about {n:.1e} straight segments, more than strayflux \
+         holds ({MAX_SEGMENTS:.0e}); raise [solver] tolerance, model fewer turns, or use a \
+         dipole with the same effective area"
+    )))
+}
+
 /// A positive, possibly fractional number of turns.
 fn turns_real(t: &Table<'_, '_>) -> Result<f64, InputError> {
     let v = t.require("turns", "the number of turns, e.g. 40")?;
@@ -88,6 +105,7 @@ fn parse_helix(
     let turns = turns_real(t)?;
     check_wire(&rv, radius, wire_radius)?;
     check_pitch(&lv, len / turns, wire_radius)?;
+    check_segments(&t.require("turns", "")?, turns, ctx.tolerance)?;
     let axial = t.one_of("leads", &["axial", "none"])? == "axial";
     if !axial {
         warnings.push(
@@ -114,6 +132,7 @@ fn parse_toroid(
     let (major, _) = positive(t, "major_radius", "radius of the core's centre line")?;
     let (minor, mv) = positive(t, "minor_radius", "radius of the winding's cross-section")?;
     let turns = turns_whole(t)?;
+    check_segments(&t.require("turns", "")?, turns as f64, ctx.tolerance)?;
     if minor >= major {
         return Err(mv.error(format!(
             "must be smaller than major_radius ({}), got {}",
@@ -147,6 +166,7 @@ fn parse_spiral(
     let (inner, _) = positive(t, "inner_radius", "radius where the spiral starts")?;
     let (outer, ov) = positive(t, "outer_radius", "radius where the spiral ends")?;
     let turns = turns_real(t)?;
+    check_segments(&t.require("turns", "")?, turns, ctx.tolerance)?;
     if inner >= outer {
         return Err(ov.error(format!(
             "must be larger than inner_radius ({}), got {}",
@@ -206,7 +226,12 @@ fn parse_pair(
         return Err(sv.error("must be smaller than the cable length"));
     }
     let pitch = match t.get("twist_pitch") {
-        Some(v) => Some(v.positive(Dimension::Length)?),
+        Some(v) => {
+            let p = v.positive(Dimension::Length)?;
+            // Two conductors, each turning once per pitch.
+            check_segments(&v, 2.0 * len / p, ctx.tolerance)?;
+            Some(p)
+        }
         None => None,
     };
     Ok(pair(frame, len, sep, pitch, ctx.tolerance, wire_radius))

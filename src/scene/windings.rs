@@ -43,8 +43,9 @@ fn positive<'a, 'i>(
     Ok((v.positive(Dimension::Length)?, v))
 }
 
-/// Most straight segments one source may have: about 0.6 GB of geometry.
-const MAX_SEGMENTS: f64 = 1e7;
+/// Most straight segments one source may have: about 0.25 GB of geometry, built in
+/// about a second.
+const MAX_SEGMENTS: f64 = 4e6;
 
 /// Refuses, at `v`, a winding of `turns` full turns (at `tolerance`) that would need more
 /// than [`MAX_SEGMENTS`] segments.

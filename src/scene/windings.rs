@@ -43,9 +43,9 @@ fn positive<'a, 'i>(
     Ok((v.positive(Dimension::Length)?, v))
 }
 
-/// Most straight segments one source may have: about 0.25 GB of geometry, built in
-/// about a second.
-const MAX_SEGMENTS: f64 = 4e6;
+/// Most straight segments one source may have: about 0.12 GB of geometry, built in
+/// well under a second.
+const MAX_SEGMENTS: f64 = 2e6;
 
 /// Refuses, at `v`, a winding of `turns` full turns (at `tolerance`) that would need more
 /// than [`MAX_SEGMENTS`] segments.

@@ -167,6 +167,23 @@ pub(crate) fn parse(
         None => None,
     };
     t.finish(GEOMETRY_KEYS, &format!("a source of kind \"{kind}\""))?;
+    // Extreme amplitudes or calibrations can overflow the line phasors.
+    let finite = |c: &num_complex::Complex64| c.re.is_finite() && c.im.is_finite();
+    if !lines
+        .iter()
+        .all(|l| finite(&l.current) && l.frequency.is_finite())
+    {
+        let key = if t.has("calibrate") {
+            "calibrate"
+        } else {
+            "current"
+        };
+        return Err(t.error_at(
+            key,
+            "the current's spectral lines overflow double precision: check the amplitude \
+             (or the calibration field and point)",
+        ));
+    }
     Ok(Source {
         id,
         kind: kind.to_string(),

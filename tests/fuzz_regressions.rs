@@ -92,3 +92,48 @@ fn invariants_contact_between_samples_was_not_warned() {
         scene.warnings
     );
 }
+
+#[test]
+fn fuzz_sawtooth_of_1e308_amperes_gave_a_nan_phasor() {
+    // A mutated crt-deflection-yoke.toml: the sawtooth's line amplitudes 2·peak/(π n)
+    // overflow when summed into phasors.
+    let text = "[[source]]\nid = \"s\"\nkind = \"loop\"\nradius = \"8 mm\"\n\
+                current = { waveform = \"sawtooth\", frequency = \"15 kHz\", \
+                peak = \"1e308 A\", harmonics = 9 }\n";
+    refused(text, "overflow double precision");
+}
+
+#[test]
+fn fuzz_saddle_opening_of_5e_324_gave_nan_vertices() {
+    let text = "[[source]]\nid = \"s\"\nkind = \"saddle\"\nradius = \"10 mm\"\n\
+                length = \"20 mm\"\nopening = 5e-324\nturns = 1\n\
+                current = { frequency = \"50 Hz\", peak = \"1 A\" }\n";
+    refused(text, "axial runs");
+}
+
+#[test]
+fn fuzz_integer_beyond_i128_lost_its_sign() {
+    let text = "[[source]]\nid = \"s\"\nkind = \"loop\"\nradius = \"8 mm\"\n\
+                axis = [0, 0, -100000000000000000000000000000000000000000]\n\
+                current = { frequency = \"1 kHz\", peak = \"1 A\" }\n";
+    refused(text, "too large for a whole number");
+}
+
+#[test]
+fn fuzz_shielded_map_with_a_tiny_step_built_every_point_first() {
+    // 1e9 points would have been collected (24 GB) before the grid's points were
+    // checked against the sheet; the refusal must now be immediate (`refused` times it).
+    let text = "[[source]]\nid = \"s\"\nkind = \"loop\"\nradius = \"4 mm\"\n\
+                current = { frequency = \"1 kHz\", peak = \"1 A\" }\n\
+                [[shield]]\nid = \"al\"\nmaterial = \"aluminium\"\nthickness = \"1 mm\"\n\
+                position = [0, 0, 0.011]\naxis = [0, 0, 1]\n\
+                [[map]]\nid = \"m\"\nkind = \"box\"\nmin = [-0.02, -0.02, 0.009]\n\
+                max = [0.02, 0.02, 0.014]\nstep = \"0.041 mm\"\n";
+    refused(text, "inside shield \"al\"");
+}
+
+#[test]
+fn fuzz_empty_quoted_key_was_shown_as_a_dangling_dot() {
+    let text = "[scene]\n\"\" = 3\n";
+    refused(text, "scene.\"\"");
+}

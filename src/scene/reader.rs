@@ -108,9 +108,20 @@ impl<'a, 'i> Table<'a, 'i> {
     }
 
     /// The full key path of a key in this table.
+    /// A key that is not a bare TOML key (empty, or with other characters than
+    /// letters, digits, `_` and `-`) is shown quoted, as it is written in TOML.
     pub fn path_of(&self, name: &str) -> String {
-        if self.key.is_empty() {
+        let bare = !name.is_empty()
+            && name
+                .chars()
+                .all(|c| c.is_ascii_alphanumeric() || c == '_' || c == '-');
+        let name = if bare {
             name.to_string()
+        } else {
+            format!("{name:?}")
+        };
+        if self.key.is_empty() {
+            name
         } else {
             format!("{}.{}", self.key, name)
         }
@@ -261,7 +272,7 @@ impl<'a, 'i> Value<'a, 'i> {
     /// A finite number (TOML integer or float), unitless.
     pub fn number(&self) -> Result<f64, InputError> {
         let x = match self.value {
-            DeValue::Integer(i) => parse_integer(i.as_str(), i.radix()) as f64,
+            DeValue::Integer(i) => self.integer(i.as_str(), i.radix())? as f64,
             DeValue::Float(f) => parse_float(f.as_str()),
             _ => return Err(self.type_error("a number")),
         };
@@ -272,12 +283,23 @@ impl<'a, 'i> Value<'a, 'i> {
         }
     }
 
+    /// A TOML integer's value, refused when it does not fit in 128 bits (such a value
+    /// would otherwise lose its sign or magnitude silently).
+    fn integer(&self, text: &str, radix: u32) -> Result<i128, InputError> {
+        parse_integer(text, radix).ok_or_else(|| {
+            self.error(format!(
+                "{} is too large for a whole number; write it as a float (e.g. 1e41)",
+                self.raw()
+            ))
+        })
+    }
+
     /// A whole number at least `min`.
     pub fn count(&self, min: i64) -> Result<u64, InputError> {
         let DeValue::Integer(i) = self.value else {
             return Err(self.type_error("a whole number"));
         };
-        let n = parse_integer(i.as_str(), i.radix());
+        let n = self.integer(i.as_str(), i.radix())?;
         if n < min as i128 {
             return Err(self.error(format!("must be at least {min}, got {n}")));
         }
@@ -430,7 +452,7 @@ fn describe(v: &DeValue<'_>) -> &'static str {
     }
 }
 
-fn parse_integer(text: &str, radix: u32) -> i128 {
+fn parse_integer(text: &str, radix: u32) -> Option<i128> {
     let clean: String = text.chars().filter(|&c| c != '_').collect();
     let (sign, body) = match clean.strip_prefix('-') {
         Some(b) => (-1, b.to_string()),
@@ -441,7 +463,7 @@ fn parse_integer(text: &str, radix: u32) -> i128 {
     } else {
         body.get(2..).unwrap_or("")
     };
-    i128::from_str_radix(body, radix).map_or(i128::MAX, |n| sign * n)
+    i128::from_str_radix(body, radix).ok().map(|n| sign * n)
 }
 
 fn parse_float(text: &str) -> f64 {

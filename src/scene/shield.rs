@@ -387,25 +387,71 @@ pub(crate) fn check_map(
     spec: &super::map::MapSpec,
     barrier: &Barrier,
 ) -> Result<(), InputError> {
-    for p in spec.all_points() {
-        match barrier.place(&p) {
-            Place::Inside(id) => {
-                return Err(t.error(format!(
-                    "map \"{}\" has grid points inside shield \"{id}\" (at {}): put the grid \
-                     on one side of the sheet, or shift it so no point falls inside",
-                    spec.id,
-                    crate::units::mm_point(&p)
-                )));
+    let Some((p, place)) = first_in_stack(spec, barrier) else {
+        return Ok(());
+    };
+    match place {
+        Place::Between(a, b) => Err(t.error(format!(
+            "map \"{}\" has grid points between shields \"{a}\" and \"{b}\", which \
+             strayflux does not model",
+            spec.id
+        ))),
+        Place::Inside(id) => Err(t.error(format!(
+            "map \"{}\" has grid points inside shield \"{id}\" (at {}): put the grid \
+             on one side of the sheet, or shift it so no point falls inside",
+            spec.id,
+            crate::units::mm_point(&p)
+        ))),
+        _ => Ok(()),
+    }
+}
+
+/// The grid points that can lie within the stack's thickness, found without visiting
+/// the whole grid (a map may have 1e9 points): the height along the normal is linear in
+/// the grid index, so along the longest axis the indices inside `[0, thickness]` form
+/// an interval, solved for each row of the two shorter axes (at most 1e6 rows for a
+/// 1e9-point map). Each interval's ends and their neighbours are tested with
+/// `Barrier::place`, which makes the exact decision with its own rounding; the first
+/// point inside or between sheets is returned with its place.
+fn first_in_stack(spec: &super::map::MapSpec, barrier: &Barrier) -> Option<(Vec3, Place)> {
+    let mut axes = [0usize, 1, 2];
+    axes.sort_by_key(|&a| spec.points[a]);
+    let [a, b, c] = axes;
+    let d = barrier.thickness();
+    let index = |ia: usize, ib: usize, ic: usize| {
+        let mut ix = [0usize; 3];
+        ix[a] = ia;
+        ix[b] = ib;
+        ix[c] = ic;
+        spec.point(ix[0], ix[1], ix[2])
+    };
+    let nc = spec.points[c];
+    for ia in 0..spec.points[a] {
+        for ib in 0..spec.points[b] {
+            let s0 = barrier.height(&index(ia, ib, 0));
+            let ds = if nc > 1 {
+                barrier.height(&index(ia, ib, 1)) - s0
+            } else {
+                0.0
+            };
+            let ends = if ds == 0.0 || !ds.is_finite() {
+                [0.0, 0.0]
+            } else {
+                [(0.0 - s0) / ds, (d - s0) / ds]
+            };
+            for k in ends {
+                for dk in [-1.0, 0.0, 1.0, 2.0] {
+                    let kk = k.floor() + dk;
+                    if kk >= 0.0 && kk < nc as f64 {
+                        let p = index(ia, ib, kk as usize);
+                        let place = barrier.place(&p);
+                        if matches!(place, Place::Inside(_) | Place::Between(..)) {
+                            return Some((p, place));
+                        }
+                    }
+                }
             }
-            Place::Between(a, b) => {
-                return Err(t.error(format!(
-                    "map \"{}\" has grid points between shields \"{a}\" and \"{b}\", which \
-                     strayflux does not model",
-                    spec.id
-                )));
-            }
-            _ => {}
         }
     }
-    Ok(())
+    None
 }

@@ -203,6 +203,16 @@ fn parse_saddle(
     let turns = turns_whole(t)? as f64;
     check_wire(&rv, radius, wire_radius)?;
     check_wire(&lv, len, wire_radius)?;
+    // The two axial runs of one coil are 2 r sin(opening/2) apart: they must clear the
+    // wire, and the arc must be long enough to be drawn in floating point.
+    let gap = 2.0 * radius * (opening / 2.0).sin();
+    if gap < 1e-9 || gap <= 2.0 * wire_radius {
+        return Err(ov.error(format!(
+            "is so small that each coil's two axial runs ({} apart) touch; open it up \
+             or use a smaller `wire_radius`",
+            mm(gap)
+        )));
+    }
     let mut coils = saddle(frame, radius, len, opening, ctx.tolerance, wire_radius);
     for c in &mut coils {
         c.weight = turns;

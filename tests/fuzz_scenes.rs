@@ -890,12 +890,16 @@ fn is_bare_key(s: &str) -> bool {
 }
 
 /// `name`, `name[2]`, `a.b[1].c`: dot-separated names, each followed by one-based
-/// indexes. A name that is not a bare key must appear quoted in the text (a TOML
-/// quoted key, possibly empty: `"" = 1` in `[scene]` is `scene.`).
+/// indexes. A name that is not a bare key is shown quoted (`scene."quoted key"`,
+/// `scene.""`), with escapes for control characters, and must be a quoted key of the
+/// text.
 fn check_key_path(key: &str, text: &str) -> Result<(), String> {
-    for part in key.split('.') {
-        let mut name = part;
+    for part in split_key_path(key) {
+        let mut name = part.as_str();
         while let Some(open) = name.rfind('[') {
+            if name.ends_with('"') {
+                break;
+            }
             let Some(index) = name[open..]
                 .strip_prefix('[')
                 .and_then(|s| s.strip_suffix(']'))
@@ -910,17 +914,52 @@ fn check_key_path(key: &str, text: &str) -> Result<(), String> {
             );
             name = &name[..open];
         }
-        // A quoted key may hold escapes (`"new\nline"`): decoded, it no longer matches
-        // its text, and the error display shows it escaped.
-        let quoted = text.contains(&format!("\"{name}\""))
-            || text.contains(&format!("'{name}'"))
-            || name.chars().any(char::is_control);
+        if name.len() >= 2 && name.starts_with('"') && name.ends_with('"') {
+            // Shown quoted: it must not be a bare key, and (unless it holds escapes,
+            // which decoded no longer match their text) it must be quoted in the text.
+            let inner = &name[1..name.len() - 1];
+            ensure!(
+                !is_bare_key(inner),
+                "key {key:?}: the bare key {inner:?} is shown quoted"
+            );
+            let quoted = inner.contains('\\')
+                || text.contains(&format!("\"{inner}\""))
+                || text.contains(&format!("'{inner}'"));
+            ensure!(
+                quoted,
+                "key {key:?}: {name} is not a quoted key of the text"
+            );
+            continue;
+        }
         ensure!(
-            is_bare_key(name) || quoted,
+            is_bare_key(name),
             "key {key:?} is not a dotted key path (part {name:?})"
         );
     }
     Ok(())
+}
+
+/// The parts of a dotted key path; dots inside a quoted part do not split it.
+fn split_key_path(key: &str) -> Vec<String> {
+    let mut parts = vec![String::new()];
+    let (mut quoted, mut escaped) = (false, false);
+    for c in key.chars() {
+        match c {
+            '.' if !quoted => parts.push(String::new()),
+            _ => {
+                if quoted && c == '\\' && !escaped {
+                    escaped = true;
+                } else {
+                    if c == '"' && !escaped {
+                        quoted = !quoted;
+                    }
+                    escaped = false;
+                }
+                parts.last_mut().unwrap().push(c);
+            }
+        }
+    }
+    parts
 }
 
 /// The error is located in the file it names and displays as one line.

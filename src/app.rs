@@ -103,8 +103,10 @@ pub fn probe_points(
     at: &[String],
     points_file: Option<&Path>,
     as_json: bool,
+    exact: bool,
 ) -> Result<Outcome, Error> {
-    let scene = Scene::load(path)?;
+    let mut scene = Scene::load(path)?;
+    scene.exact = exact;
     let mut points = Vec::new();
     for a in at {
         points.push(parse_point_arg(a)?);
@@ -218,9 +220,11 @@ pub fn sweep(
     only: Option<&str>,
     out_dir: &Path,
     as_json: bool,
+    exact: bool,
     progress: &(dyn Fn(usize, usize) + Sync),
 ) -> Result<Outcome, Error> {
-    let scene = Scene::load(path)?;
+    let mut scene = Scene::load(path)?;
+    scene.exact = exact;
     let chosen: Vec<&crate::scene::sweep::SweepSpec> = match only {
         Some(id) => {
             let s: Vec<_> = scene.sweeps.iter().filter(|s| s.id == id).collect();
@@ -320,10 +324,12 @@ pub fn map(
     only: Option<&str>,
     out_dir: &Path,
     max_memory: u64,
+    exact: bool,
     progress: &(dyn Fn(usize, usize) + Sync),
 ) -> Result<Outcome, Error> {
     use crate::fieldmap::{line_field, map_frequencies, memory_estimate};
-    let scene = Scene::load(path)?;
+    let mut scene = Scene::load(path)?;
+    scene.exact = exact;
     let chosen: Vec<&crate::scene::map::MapSpec> = match only {
         Some(id) => scene.maps.iter().filter(|m| m.id == id).collect(),
         None => scene.maps.iter().collect(),
@@ -459,9 +465,22 @@ fn chunked_shielded(
 fn chunked_fields(scene: &Scene, points: &[Vec3], tick: &(dyn Fn(usize) + Sync)) -> Vec<Vec<Vec3>> {
     const CHUNK: usize = 1 << 14;
     let mut out: Vec<Vec<Vec3>> = vec![Vec::with_capacity(points.len()); scene.sources.len()];
+    // Each source's far-field expansion is built once for the whole map.
+    let fast: Vec<crate::field::Accelerated> = scene
+        .sources
+        .iter()
+        .map(|s| {
+            crate::field::Accelerated::for_points(
+                &s.conductors,
+                points,
+                scene.tolerance,
+                scene.exact,
+            )
+        })
+        .collect();
     for chunk in points.chunks(CHUNK) {
-        for (o, s) in out.iter_mut().zip(&scene.sources) {
-            o.extend(crate::field::b_at_points(&s.conductors, chunk));
+        for (o, s) in out.iter_mut().zip(&fast) {
+            o.extend(crate::field::b_at_points(s, chunk));
         }
         tick(chunk.len());
     }

@@ -66,18 +66,7 @@ fn far_edge<F: Fn(f64) -> (f64, f64) + Sync>(
     sphere: Option<(crate::field::Vec3, f64)>,
     tolerance: f64,
 ) -> Option<Integral> {
-    let (centre, radius) = sphere?;
-    let (e_centre, e_radius) = edge.bounding_sphere();
-    let gap = (e_centre - centre).norm() - radius - e_radius;
-    let h = edge.length() / panels as f64;
-    let order = crate::quadrature::ORDER as f64;
-    let target = 100.0 / tolerance;
-    // Half the gap counts, a margin of 2 on the estimate's distance.
-    let ratio = 4.0 * (gap / 2.0) / h;
-    if gap.is_nan() || ratio <= target.powf(1.0 / (2.0 * order)) {
-        return None;
-    }
-    let points = (target.ln() / (2.0 * ratio.ln())).ceil().max(2.0) as usize;
+    let points = far_points(edge, panels, sphere, tolerance)?;
     let mut out = Integral {
         value: 0.0,
         magnitude: 0.0,
@@ -94,6 +83,129 @@ fn far_edge<F: Fn(f64) -> (f64, f64) + Sync>(
         out.magnitude += v.abs();
     }
     Some(out)
+}
+
+/// The Gauss–Legendre points per first-pass panel of [`far_edge`]'s rule for `edge`,
+/// or `None` when the conductors (inside `sphere`) are too close for it.
+fn far_points(
+    edge: &Edge,
+    panels: usize,
+    sphere: Option<(crate::field::Vec3, f64)>,
+    tolerance: f64,
+) -> Option<usize> {
+    let (centre, radius) = sphere?;
+    let (e_centre, e_radius) = edge.bounding_sphere();
+    let gap = (e_centre - centre).norm() - radius - e_radius;
+    let h = edge.length() / panels as f64;
+    let order = crate::quadrature::ORDER as f64;
+    let target = 100.0 / tolerance;
+    // Half the gap counts, a margin of 2 on the estimate's distance.
+    let ratio = 4.0 * (gap / 2.0) / h;
+    if gap.is_nan() || ratio <= target.powf(1.0 / (2.0 * order)) {
+        return None;
+    }
+    Some((target.ln() / (2.0 * ratio.ln())).ceil().max(2.0) as usize)
+}
+
+/// Flux per ampere (Wb/A) through the closed chain `edges` from a source's multipole
+/// expansion `far`, or `None` when the victim is not far enough for it to be proven
+/// within `tolerance` and cheaper than the direct sum. Every edge must be far enough
+/// from the conductors (inside `sphere`) for [`far_edge`]'s one-pass rule. The error of
+/// the series at degree q is bounded at each node by [`FarField::a_bound`]; summed over
+/// the rule's |weight × tangent|, that bounds the flux error, which must come under a
+/// tenth of the tolerance times the flux found (with the series' rounding noise). The
+/// degree is chosen from a first estimate through degree 2 (dipole and quadrupole).
+///
+/// A flat victim (`face`: the centre (m) and radius (m) of a disc holding it, and its
+/// area, m²) also has the bound area × [`FarField::b_bound`] at the disc's nearest
+/// point, the flux of the series' error field through the face; the smaller bound is
+/// used.
+pub fn flux_from_far(
+    far: &crate::field::FarField,
+    sphere: Option<(crate::field::Vec3, f64)>,
+    edges: &[Edge],
+    face: Option<(crate::field::Vec3, f64, f64)>,
+    tolerance: f64,
+) -> Option<Integral> {
+    use crate::field::Vec3;
+    use crate::field::multipole::MAX_ORDER;
+    let (centre, r_far) = far.sphere();
+    // A victim whose nearest part is within twice the conductors' radius would need
+    // more degrees than are kept.
+    let near = edges.iter().any(|e| {
+        let (c, r) = e.bounding_sphere();
+        (c - centre).norm() - r < 2.0 * r_far
+    });
+    if near {
+        return None;
+    }
+    // Nodes: (point, tangent × weight).
+    let mut nodes: Vec<(Vec3, Vec3)> = Vec::new();
+    for edge in edges {
+        let panels = edge.initial_panels();
+        let points = far_points(edge, panels, sphere, tolerance)?;
+        let (x, w) = crate::quadrature::rule_of(points);
+        for k in 0..panels {
+            let (t0, t1) = (k as f64 / panels as f64, (k + 1) as f64 / panels as f64);
+            let (mid, half) = ((t0 + t1) / 2.0, (t1 - t0) / 2.0);
+            for (xi, wi) in x.iter().zip(w) {
+                let t = mid + half * xi;
+                let p = edge.point(t);
+                if (p - centre).norm() <= 1.5 * r_far {
+                    return None;
+                }
+                nodes.push((p, edge.tangent(t) * (wi * half)));
+            }
+        }
+    }
+    // The bound at the nearest node, times the rule's Σ |weight × tangent|.
+    let nearest_node = nodes
+        .iter()
+        .map(|(p, _)| (p - centre).norm())
+        .fold(f64::INFINITY, f64::min);
+    let length: f64 = nodes.iter().map(|(_, tw)| tw.norm()).sum();
+    let bound = |q: usize| -> f64 {
+        let along = length * far.a_bound(q, nearest_node);
+        let through = face.map_or(f64::INFINITY, |(c, r, area)| {
+            let nearest = (c - centre).norm() - r;
+            if nearest > r_far {
+                area * far.b_bound(q, nearest)
+            } else {
+                f64::INFINITY
+            }
+        });
+        along.min(through)
+    };
+    let flux_through = |q: usize| -> (Vec<f64>, f64) {
+        let mut by_degree = vec![0.0; q + 1];
+        let mut parts = [Vec3::zeros(); MAX_ORDER + 1];
+        let mut noise = 0.0;
+        for (p, tw) in &nodes {
+            let abs = far.a_degrees(p, q, &mut parts);
+            for (b, part) in by_degree.iter_mut().zip(&parts) {
+                *b += part.dot(tw);
+            }
+            noise += abs * tw.norm();
+        }
+        (by_degree, 256.0 * f64::EPSILON * noise)
+    };
+    let (first, _) = flux_through(2);
+    let guess: f64 = first.iter().sum::<f64>().abs();
+    let q = (2..=MAX_ORDER).find(|&q| bound(q) <= 0.05 * tolerance * guess)?;
+    // A term costs about half a segment–point pair: pay only if clearly cheaper.
+    if far.terms(q) * 2 > far.segments() {
+        return None;
+    }
+    let (by_degree, noise) = flux_through(q);
+    let value: f64 = by_degree.iter().sum();
+    if bound(q) + noise > 0.1 * tolerance * value.abs() {
+        return None;
+    }
+    Some(Integral {
+        value,
+        magnitude: value.abs(),
+        converged: true,
+    })
 }
 
 /// EMF phasor (V, peak) induced by `line` through mutual inductance `m` (H):
@@ -193,7 +305,18 @@ pub struct PairModel {
 impl PairModel {
     /// Builds the model of `source` coupling into `victim` in `scene`.
     pub fn new(scene: &Scene, source: &Source, victim: &Victim) -> Result<PairModel, String> {
-        let phi = flux_per_amp(&source.conductors, &victim.edges, scene.tolerance);
+        let far = source.far_field_if_built().filter(|_| !scene.exact);
+        let phi = far
+            .and_then(|f| {
+                flux_from_far(
+                    f,
+                    source.conductors.bounding_sphere(),
+                    &victim.edges,
+                    victim.flat_face(),
+                    scene.tolerance,
+                )
+            })
+            .unwrap_or_else(|| flux_per_amp(&source.conductors, &victim.edges, scene.tolerance));
         let src_points = crate::scene::source_points(source);
         let scattered = match &scene.barrier {
             None => None,

@@ -73,6 +73,11 @@ enum Command {
         /// default: half the machine's memory.
         #[arg(long, value_name = "SIZE")]
         max_memory: Option<String>,
+        /// Sum every field directly over all segments; by default the field far from a
+        /// large source (64 segments or more) comes from its multipole expansion where
+        /// that is proven within the tolerance and cheaper.
+        #[arg(long)]
+        exact: bool,
     },
     /// Run the scene's sweeps (distance, angle, frequency): write DIR/<id>.csv and
     /// DIR/<id>.svg and print the safe distance.
@@ -89,6 +94,11 @@ enum Command {
         /// Print one JSON document instead of the summary.
         #[arg(long)]
         json: bool,
+        /// Sum every flux directly over all segments; by default a victim placed far
+        /// from a large source (64 segments or more) takes its flux from the source's
+        /// multipole expansion where that is proven within the tolerance and cheaper.
+        #[arg(long)]
+        exact: bool,
     },
     /// The built-in shield materials: conductivity, relative permeability and skin
     /// depth, with the source of each value.
@@ -115,6 +125,12 @@ enum Command {
         /// Print one JSON document instead of the tables.
         #[arg(long)]
         json: bool,
+
+        /// Sum every field directly over all segments; by default the field far from a
+        /// large source (64 segments or more) comes from its multipole expansion where
+        /// that is proven within the tolerance and cheaper.
+        #[arg(long)]
+        exact: bool,
     },
 }
 
@@ -123,6 +139,7 @@ fn run_map(
     only: Option<&str>,
     out: &std::path::Path,
     max_memory: Option<&str>,
+    exact: bool,
 ) -> Result<app::Outcome, strayflux::Error> {
     let limit = match max_memory {
         Some(text) => strayflux::fieldmap::parse_memory(text).ok_or_else(|| {
@@ -133,7 +150,7 @@ fn run_map(
         None => strayflux::fieldmap::default_memory_limit(),
     };
     let bar = progress_bar();
-    let result = app::map(scene, only, out, limit, &|done, total| {
+    let result = app::map(scene, only, out, limit, exact, &|done, total| {
         if let Some(b) = &bar {
             b.set_length(total as u64);
             b.set_position(done as u64);
@@ -182,20 +199,29 @@ fn main() -> ExitCode {
             only,
             out,
             max_memory,
-        } => run_map(scene, only.as_deref(), out, max_memory.as_deref()),
+            exact,
+        } => run_map(scene, only.as_deref(), out, max_memory.as_deref(), *exact),
         Command::Sweep {
             scene,
             only,
             out,
             json,
+            exact,
         } => {
             let bar = progress_bar();
-            let result = app::sweep(scene, only.as_deref(), out, *json, &|done, total| {
-                if let Some(b) = &bar {
-                    b.set_length(total as u64);
-                    b.set_position(done as u64);
-                }
-            });
+            let result = app::sweep(
+                scene,
+                only.as_deref(),
+                out,
+                *json,
+                *exact,
+                &|done, total| {
+                    if let Some(b) = &bar {
+                        b.set_length(total as u64);
+                        b.set_position(done as u64);
+                    }
+                },
+            );
             if let Some(b) = bar {
                 b.finish_and_clear();
             }
@@ -206,7 +232,8 @@ fn main() -> ExitCode {
             at,
             points,
             json,
-        } => app::probe_points(scene, at, points.as_deref(), *json),
+            exact,
+        } => app::probe_points(scene, at, points.as_deref(), *json, *exact),
         Command::Materials { frequency } => app::materials(frequency.as_deref()),
     };
     match result {

@@ -73,7 +73,15 @@ fn free_space(scene: &Scene, points: &[Vec3]) -> Vec<ProbePoint> {
     let per_source: Vec<Vec<Vec3>> = scene
         .sources
         .iter()
-        .map(|s| b_at_points(&s.conductors, points))
+        .map(|s| {
+            let fast = crate::field::Accelerated::for_points(
+                &s.conductors,
+                points,
+                scene.tolerance,
+                scene.exact,
+            );
+            b_at_points(&fast, points)
+        })
         .collect();
     let freqs = frequencies(scene);
     points

@@ -72,6 +72,12 @@ fn rules() -> &'static [(Vec<f64>, Vec<f64>)] {
     RULES.get_or_init(|| (1..=ORDER).map(gauss_legendre).collect())
 }
 
+/// The `points`-point Gauss–Legendre rule on [−1, 1] (1 ≤ points ≤ ORDER): nodes and
+/// weights.
+pub fn rule_of(points: usize) -> &'static (Vec<f64>, Vec<f64>) {
+    &rules()[points.clamp(1, ORDER) - 1]
+}
+
 /// ∫ f over [t0, t1] with one `points`-point Gauss–Legendre panel (1 ≤ points ≤ ORDER),
 /// returning only the value.
 pub fn panel_with<F: Fn(f64) -> (f64, f64)>(f: &F, t0: f64, t1: f64, points: usize) -> f64 {

@@ -7,9 +7,11 @@
 
 mod dipole;
 mod kernel;
+pub mod multipole;
 mod segment;
 
 pub use dipole::Dipole;
+pub use multipole::{Accelerated, FarField};
 pub use segment::Polyline;
 pub(crate) use segment::any_perpendicular;
 

@@ -54,6 +54,9 @@ pub struct Scene {
     pub enclosures: Vec<crate::shield::enclosure::Enclosure>,
     /// Warnings found while loading (results outside the model, unclosed paths).
     pub warnings: Vec<String>,
+    /// Sum every field directly, never from a source's far-field expansion (the
+    /// command line's `--exact`; not read from the file).
+    pub exact: bool,
 }
 
 /// A source: conductors placed in the scene and the spectral lines of their current.
@@ -71,6 +74,45 @@ pub struct Source {
     pub lines: Vec<Line>,
     /// With `calibrate`: the point (m) and the rms |B| (T) the current was scaled to.
     pub calibration: Option<(Vec3, f64)>,
+    /// The conductors' far-field expansion, built on first request by
+    /// [`Source::far_field`] and shared by clones (the conductors never change after
+    /// loading).
+    pub far: std::sync::Arc<std::sync::OnceLock<Option<crate::field::FarField>>>,
+}
+
+impl Source {
+    /// The conductors' multipole expansion (built now if not yet), or `None` for a
+    /// source with too few segments for it to pay.
+    pub fn far_field(&self) -> Option<&crate::field::FarField> {
+        self.far
+            .get_or_init(|| crate::field::FarField::new(&self.conductors))
+            .as_ref()
+    }
+
+    /// The expansion if it was already built (by a sweep), without building it.
+    pub fn far_field_if_built(&self) -> Option<&crate::field::FarField> {
+        self.far.get().and_then(Option::as_ref)
+    }
+}
+
+impl Victim {
+    /// For a flat victim of one simple closed path (a `loop` or `rectangle`): the
+    /// centre (m) and radius (m) of a disc in its plane holding it, and its area (m²).
+    pub fn flat_face(&self) -> Option<(Vec3, f64, f64)> {
+        if !matches!(self.kind.as_str(), "loop" | "rectangle") {
+            return None;
+        }
+        let c = self.frame.origin;
+        let r = self
+            .edges
+            .iter()
+            .map(|e| {
+                let (ec, er) = e.bounding_sphere();
+                (ec - c).norm() + er
+            })
+            .fold(0.0, f64::max);
+        Some((c, r, self.area))
+    }
 }
 
 /// A victim loop: a closed path whose flux linkage gives the induced EMF.
@@ -311,6 +353,7 @@ fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, In
         barrier,
         enclosures,
         warnings,
+        exact: false,
     };
     let mut extra = Vec::new();
     for v in &scene.victims {

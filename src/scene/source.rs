@@ -191,6 +191,7 @@ pub(crate) fn parse(
         conductors,
         lines,
         calibration,
+        far: Default::default(),
     })
 }
 

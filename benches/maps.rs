@@ -1,0 +1,194 @@
+//! Whole-map timings, run once each (a map takes seconds to minutes, too long for
+//! criterion's ten samples): `cargo bench --bench maps`. Each case runs `strayflux map`
+//! in a child process of this benchmark (so its peak memory is its own), and prints the
+//! wall time, the peak resident memory and the map's output arrays.
+//!
+//! * `winding-board`: a 128³ box map (2.1 million points) 200 mm wide around a
+//!   21 120-segment helix (10 mm radius, 40 turns): most points are far from the
+//!   winding, where its multipole expansion is used.
+//! * `winding-close`: the same grid 50 mm wide, so every point is within 2.5 winding
+//!   radii: nearly all direct sums.
+//! * `polygon-64`: a 64³ map (275 000 points) of the 2000-segment polygon of
+//!   `benches/compare_numpy.py`, with `--exact`.
+//!
+//! For the winding cases the direct field is also computed at every 499th grid point,
+//! to give the largest difference between the accelerated and the direct field there
+//! and the time a fully direct map would take (extrapolated from the sample).
+//! `STRAYFLUX_BENCH_CASES=winding-board,polygon-64` picks cases; the results are also
+//! written to `target/bench-maps.csv` for the README's plot.
+
+use std::time::Instant;
+use strayflux::Scene;
+use strayflux::field::{Accelerated, b_at_points};
+
+const HELIX: &str = r#"[scene]
+title = "map benchmark: a 40-turn helix (invented)"
+[solver]
+tolerance = 1e-6
+[[source]]
+id = "coil"
+kind = "helix"
+radius = "10 mm"
+length = "20 mm"
+turns = 40
+leads = "none"
+wire_radius = "0.2 mm"
+current = { frequency = "100 kHz", peak = "1 A" }
+[[map]]
+id = "m"
+kind = "box"
+min = ["-H mm", "-H mm", "-H mm"]
+max = ["H mm", "H mm", "H mm"]
+cells = [127, 127, 127]
+"#;
+
+fn polygon_scene() -> String {
+    let n = 2000;
+    let verts: Vec<String> = (0..n)
+        .map(|k| {
+            let t = std::f64::consts::TAU * k as f64 / n as f64;
+            let r = 0.02 * (1.0 + 0.3 * (5.0 * t).cos());
+            format!("[{:?}, {:?}, 0.0]", r * t.cos(), r * t.sin())
+        })
+        .collect();
+    format!(
+        "[solver]\nwire_radius = \"0.01 mm\"\n[[source]]\nid = \"poly\"\nkind = \"polygon\"\n\
+         vertices = [{}]\ncurrent = {{ frequency = \"10 kHz\", peak = \"1 A\" }}\n\
+         [[map]]\nid = \"m\"\nkind = \"box\"\nmin = [-0.04, -0.04, 0.002]\n\
+         max = [0.04, 0.04, 0.042]\ncells = [64, 64, 64]\n",
+        verts.join(", ")
+    )
+}
+
+/// Peak resident memory of this process so far, bytes (VmHWM in /proc/self/status).
+fn peak_rss() -> Option<u64> {
+    let status = std::fs::read_to_string("/proc/self/status").ok()?;
+    let line = status.lines().find(|l| l.starts_with("VmHWM:"))?;
+    let kb: u64 = line.split_whitespace().nth(1)?.parse().ok()?;
+    Some(kb * 1024)
+}
+
+fn child(scene: &str, out: &str, exact: bool) {
+    let t = Instant::now();
+    let outcome = strayflux::app::map(
+        std::path::Path::new(scene),
+        None,
+        std::path::Path::new(out),
+        u64::MAX,
+        exact,
+        &|_, _| {},
+    );
+    let secs = t.elapsed().as_secs_f64();
+    if let Err(e) = outcome {
+        eprintln!("map failed: {e}");
+        std::process::exit(1);
+    }
+    println!("{secs} {}", peak_rss().unwrap_or(0));
+}
+
+fn main() {
+    if let Ok(spec) = std::env::var("STRAYFLUX_BENCH_CHILD") {
+        let mut parts = spec.splitn(3, '|');
+        let (scene, out, exact) = (
+            parts.next().unwrap().to_string(),
+            parts.next().unwrap().to_string(),
+            parts.next() == Some("exact"),
+        );
+        child(&scene, &out, exact);
+        return;
+    }
+    if std::env::args().any(|a| a == "--list" || a == "--test") {
+        return;
+    }
+    let dir = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target/bench-maps");
+    std::fs::create_dir_all(&dir).unwrap();
+    let chosen = std::env::var("STRAYFLUX_BENCH_CASES").ok();
+    let cases: Vec<(&str, String, bool)> = vec![
+        ("winding-board", HELIX.replace('H', "100"), false),
+        ("winding-close", HELIX.replace('H', "25"), false),
+        ("polygon-64", polygon_scene(), true),
+    ];
+    let mut csv = String::from(
+        "case,points,segments,pairs,seconds,exact_seconds_estimate,peak_bytes,output_bytes,\
+         largest_relative_difference\n",
+    );
+    for (name, text, exact) in cases {
+        if chosen
+            .as_ref()
+            .is_some_and(|c| !c.split(',').any(|x| x == name))
+        {
+            continue;
+        }
+        let path = dir.join(format!("{name}.toml"));
+        std::fs::write(&path, &text).unwrap();
+        let scene = Scene::load(&path).unwrap();
+        let spec = &scene.maps[0];
+        let points = spec.point_count();
+        let segments: usize = scene
+            .sources
+            .iter()
+            .map(|s| s.conductors.segment_count())
+            .sum();
+        let out = dir.join(format!("{name}-out"));
+        let run = std::process::Command::new(std::env::current_exe().unwrap())
+            .env(
+                "STRAYFLUX_BENCH_CHILD",
+                format!(
+                    "{}|{}|{}",
+                    path.display(),
+                    out.display(),
+                    if exact { "exact" } else { "fast" }
+                ),
+            )
+            .output()
+            .unwrap();
+        let text_out = String::from_utf8_lossy(&run.stdout);
+        let mut it = text_out.split_whitespace();
+        let secs: f64 = it.next().and_then(|s| s.parse().ok()).unwrap_or(f64::NAN);
+        let peak: u64 = it.next().and_then(|s| s.parse().ok()).unwrap_or(0);
+        // B_re, B_im (three f64 each) and B_rms (one f64) per point.
+        let output = points as u64 * 7 * 8;
+        // The direct field at a sample of the grid, against the accelerated one.
+        let (mut worst, mut exact_estimate) = (0.0f64, f64::NAN);
+        if !exact {
+            let all = spec.all_points();
+            let sample: Vec<_> = all.iter().step_by(499).copied().collect();
+            let src = &scene.sources[0].conductors;
+            let t = Instant::now();
+            let direct = b_at_points(src, &sample);
+            exact_estimate = t.elapsed().as_secs_f64() * all.len() as f64 / sample.len() as f64;
+            let fast = Accelerated::for_points(src, &all, scene.tolerance, false);
+            let got = b_at_points(&fast, &sample);
+            for (g, d) in got.iter().zip(&direct) {
+                worst = worst.max((g - d).norm() / d.norm());
+            }
+        }
+        println!(
+            "map/{name}: {points} points x {segments} segments: {secs:.2} s{}, peak {:.0} MB \
+             (output arrays {:.0} MB; target 1.5 x + 100 MB = {:.0} MB){}",
+            if exact {
+                " (--exact)".to_string()
+            } else {
+                format!(", fully direct about {exact_estimate:.0} s")
+            },
+            peak as f64 / 1e6,
+            output as f64 / 1e6,
+            (1.5 * output as f64 + 100e6) / 1e6,
+            if exact {
+                String::new()
+            } else {
+                format!("; largest difference from direct at every 499th point {worst:.1e}")
+            }
+        );
+        csv.push_str(&format!(
+            "{name},{points},{segments},{},{secs},{exact_estimate},{peak},{output},{worst}\n",
+            points as f64 * segments as f64
+        ));
+        let _ = std::fs::remove_dir_all(&out);
+    }
+    std::fs::write(
+        std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target/bench-maps.csv"),
+        csv,
+    )
+    .unwrap();
+}

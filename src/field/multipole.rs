@@ -1,0 +1,553 @@
+//! Far-field acceleration: the Cartesian multipole expansion of a source's wires about
+//! the centre of their bounding sphere, with the truncation order chosen per point from
+//! a proven error bound.
+//!
+//! The vector potential of the wires is A(x) = μ0/4π Σ w ∫ dl/|x − y|. With c the
+//! centre, 1/|x − y| = Σ_k a_k(x − c) (y − c)^k over multi-indices k, where
+//! a_k = (−1)^|k|/k! ∂^k (1/|x − c|) are the Taylor coefficients of the Coulomb kernel.
+//! They follow from the recurrence of Lindsay & Krasny (J. Comput. Phys. 172, 2001,
+//! eq. 3.5 with ε = 0):
+//!
+//! |k| R² a_k − (2|k| − 1) Σ_i x_i a_{k−e_i} + (|k| − 1) Σ_i a_{k−2e_i} = 0, a_0 = 1/R.
+//!
+//! So A_i = μ0/4π Σ_k a_k M_{i,k} with the moments M_{i,k} = Σ w ∫ (y − c)^k dl_i,
+//! integrated exactly by Gauss–Legendre (the integrand is a polynomial along each
+//! straight segment). B = ∇ × A uses ∂a_k/∂x_m = −(k_m + 1) a_{k+e_m}, which gives
+//! B_j = μ0/4π Σ_β a_β N_{j,β} with N_{j,β} = −Σ ε_jmn β_m M_{n,β−e_m}.
+//!
+//! Truncating at degree q drops the Legendre terms of degree n > q of the kernel,
+//! |y|^n P_n(cos γ)/|x|^{n+1} (the degree-n part of the Taylor series is exactly that
+//! term). With |P_n| ≤ 1 and Bernstein's inequality |sin γ P_n'(cos γ)| ≤ n, each
+//! term's gradient is at most √2 (n + 1) r^n/R^{n+2}, so for wires of gross length
+//! G = Σ |w| L inside radius r of c, at distance R, with t = r/R:
+//!
+//! |ΔA| ≤ μ0/4π · G/R · t^{q+1}/(1 − t),
+//! |ΔB| ≤ μ0/4π · G/R² · √2 t^{q+1} ((q + 2) − (q + 1) t)/(1 − t)².
+//!
+//! A point is evaluated by the expansion only if, at some degree q ≤ [`MAX_ORDER`],
+//! this bound and the series' own rounding noise fall below a tenth of the tolerance
+//! times the value found, and only while the series costs less than the direct sum;
+//! otherwise it is summed directly. So the expansion's result is within the tolerance
+//! of the exact one wherever it is used.
+
+use super::{Conductors, FieldSource, MU0_OVER_4PI, Vec3};
+use rayon::prelude::*;
+
+/// Highest multipole degree kept in the moments.
+pub const MAX_ORDER: usize = 16;
+
+/// Sources with fewer segments than this are always summed directly: their direct sum
+/// is as cheap as the series.
+pub const MIN_SEGMENTS: usize = 64;
+
+/// The share of the tolerance the truncation bound may use (the rest is margin for the
+/// direct sum's own error).
+const SHARE: f64 = 0.1;
+
+/// Multi-index tables for degrees 0..=`MAX_ORDER` + 1.
+#[derive(Clone)]
+struct Indices {
+    /// (k1, k2, k3) of each entry, ordered by degree.
+    k: Vec<[usize; 3]>,
+    /// First entry of each degree; `start[n]..start[n + 1]` is degree n.
+    start: Vec<usize>,
+    /// Entry of k − e_i, or `usize::MAX`.
+    minus1: Vec<[usize; 3]>,
+    /// Entry of k − 2e_i, or `usize::MAX`.
+    minus2: Vec<[usize; 3]>,
+}
+
+fn index_of(k: [usize; 3]) -> usize {
+    // Entries before degree n: C(n + 2, 3); within degree n, ordered by k1 descending
+    // then k2 descending.
+    let n = k[0] + k[1] + k[2];
+    let before = n * (n + 1) * (n + 2) / 6;
+    let r = n - k[0];
+    // Entries with larger k1 at this degree: Σ_{j=0}^{r−1} (j + 1) = r(r + 1)/2.
+    before + r * (r + 1) / 2 + (r - k[1])
+}
+
+impl Indices {
+    fn new(max_degree: usize) -> Self {
+        let mut k = Vec::new();
+        let mut start = Vec::new();
+        for n in 0..=max_degree {
+            start.push(k.len());
+            for k1 in (0..=n).rev() {
+                for k2 in (0..=n - k1).rev() {
+                    k.push([k1, k2, n - k1 - k2]);
+                }
+            }
+        }
+        start.push(k.len());
+        let less = |kk: [usize; 3], i: usize, by: usize| {
+            if kk[i] < by {
+                usize::MAX
+            } else {
+                let mut m = kk;
+                m[i] -= by;
+                index_of(m)
+            }
+        };
+        let minus1 = k
+            .iter()
+            .map(|&kk| std::array::from_fn(|i| less(kk, i, 1)))
+            .collect();
+        let minus2 = k
+            .iter()
+            .map(|&kk| std::array::from_fn(|i| less(kk, i, 2)))
+            .collect();
+        Indices {
+            k,
+            start,
+            minus1,
+            minus2,
+        }
+    }
+}
+
+/// The multipole moments of a source's wires about one centre.
+#[derive(Clone)]
+pub struct FarField {
+    /// Expansion centre, m.
+    centre: Vec3,
+    /// Radius about `centre` holding every wire (with its conductor radius), m.
+    radius: f64,
+    /// Gross wire length G = Σ |weight| × length, m (per ampere of source current).
+    gross: f64,
+    /// Segments summed by the direct path.
+    segments: usize,
+    idx: Indices,
+    /// M_{i,k} for |k| ≤ MAX_ORDER, m^{|k|+1}.
+    m: Vec<[f64; 3]>,
+    /// N_{j,β} for |β| ≤ MAX_ORDER + 1.
+    n: Vec<[f64; 3]>,
+}
+
+impl std::fmt::Debug for FarField {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("FarField")
+            .field("centre", &self.centre)
+            .field("radius", &self.radius)
+            .field("gross", &self.gross)
+            .field("segments", &self.segments)
+            .finish_non_exhaustive()
+    }
+}
+
+/// A point's expansion result: the value and the degree used.
+#[derive(Clone, Copy, Debug)]
+pub struct Expanded {
+    /// B (T/A) or A (T·m/A) per ampere.
+    pub value: Vec3,
+    /// The degree q at which the bound was met.
+    pub order: usize,
+}
+
+impl FarField {
+    /// The moments of `wires`' conductors, or `None` when there are too few segments
+    /// for the series to pay.
+    pub fn new(wires: &Conductors) -> Option<Self> {
+        let segments = wires.segment_count();
+        if segments < MIN_SEGMENTS {
+            return None;
+        }
+        let verts = wires.wires.iter().flat_map(|w| w.vertices.iter());
+        let (centre, r) = super::sphere_around(verts)?;
+        let pad = wires
+            .wires
+            .iter()
+            .map(|w| w.wire_radius)
+            .fold(0.0, f64::max);
+        let idx = Indices::new(MAX_ORDER + 1);
+        let terms = idx.start[MAX_ORDER + 1];
+        // Gauss–Legendre on [0, 1], exact for degree MAX_ORDER along a segment.
+        let (gx, gw) = crate::quadrature::gauss_legendre(MAX_ORDER / 2 + 1);
+        let nodes: Vec<(f64, f64)> = gx
+            .iter()
+            .zip(&gw)
+            .map(|(x, w)| ((x + 1.0) / 2.0, w / 2.0))
+            .collect();
+        // Segments in fixed chunks, partial moments summed in chunk order: the result
+        // does not depend on the thread count.
+        let segs: Vec<(Vec3, Vec3, f64)> = wires
+            .wires
+            .iter()
+            .flat_map(|w| {
+                w.vertices
+                    .windows(2)
+                    .map(move |p| (p[0] - centre, p[1] - p[0], w.weight))
+            })
+            .collect();
+        let partial: Vec<Vec<[f64; 3]>> = segs
+            .par_chunks(256)
+            .map(|chunk| {
+                let mut m = vec![[0.0; 3]; terms];
+                let mut px = [0.0; MAX_ORDER + 1];
+                let mut py = [0.0; MAX_ORDER + 1];
+                let mut pz = [0.0; MAX_ORDER + 1];
+                for &(a, d, w) in chunk {
+                    for &(t, wt) in &nodes {
+                        let y = a + d * t;
+                        px[0] = 1.0;
+                        py[0] = 1.0;
+                        pz[0] = 1.0;
+                        for e in 1..=MAX_ORDER {
+                            px[e] = px[e - 1] * y.x;
+                            py[e] = py[e - 1] * y.y;
+                            pz[e] = pz[e - 1] * y.z;
+                        }
+                        let f = d * (w * wt);
+                        for (mk, k) in m.iter_mut().zip(&idx.k) {
+                            let mono = px[k[0]] * py[k[1]] * pz[k[2]];
+                            mk[0] += f.x * mono;
+                            mk[1] += f.y * mono;
+                            mk[2] += f.z * mono;
+                        }
+                    }
+                }
+                m
+            })
+            .collect();
+        let mut m = vec![[0.0; 3]; terms];
+        for p in partial {
+            for (a, b) in m.iter_mut().zip(p) {
+                for i in 0..3 {
+                    a[i] += b[i];
+                }
+            }
+        }
+        let all = idx.k.len();
+        let mut n = vec![[0.0; 3]; all];
+        for (b, nb) in n.iter_mut().enumerate().skip(1) {
+            let beta = idx.k[b];
+            let mm = |mdir: usize, comp: usize| -> f64 {
+                let e = idx.minus1[b][mdir];
+                if e == usize::MAX {
+                    0.0
+                } else {
+                    beta[mdir] as f64 * m[e][comp]
+                }
+            };
+            // N_{j,β} = −Σ ε_jmn β_m M_{n,β−e_m}
+            nb[0] = -(mm(1, 2) - mm(2, 1));
+            nb[1] = -(mm(2, 0) - mm(0, 2));
+            nb[2] = -(mm(0, 1) - mm(1, 0));
+        }
+        let gross = wires
+            .wires
+            .iter()
+            .map(|w| w.length() * w.weight.abs())
+            .sum();
+        Some(FarField {
+            centre,
+            radius: r + pad,
+            gross,
+            segments,
+            idx,
+            m,
+            n,
+        })
+    }
+
+    /// Expansion centre (m) and the radius (m) holding every wire.
+    pub fn sphere(&self) -> (Vec3, f64) {
+        (self.centre, self.radius)
+    }
+
+    /// The proven bound on |ΔB| (T/A) after degree `q` at distance `r_dist` (m).
+    pub fn b_bound(&self, q: usize, r_dist: f64) -> f64 {
+        let t = self.radius / r_dist;
+        if t >= 1.0 {
+            return f64::INFINITY;
+        }
+        let q = q as f64;
+        MU0_OVER_4PI * self.gross / (r_dist * r_dist)
+            * std::f64::consts::SQRT_2
+            * t.powf(q + 1.0)
+            * ((q + 2.0) - (q + 1.0) * t)
+            / ((1.0 - t) * (1.0 - t))
+    }
+
+    /// The proven bound on |ΔA| (T·m/A) after degree `q` at distance `r_dist` (m).
+    pub fn a_bound(&self, q: usize, r_dist: f64) -> f64 {
+        let t = self.radius / r_dist;
+        if t >= 1.0 {
+            return f64::INFINITY;
+        }
+        MU0_OVER_4PI * self.gross / r_dist * t.powf(q as f64 + 1.0) / (1.0 - t)
+    }
+
+    /// The most series terms worth computing instead of the direct sum: a term costs
+    /// about half a segment–point pair.
+    fn budget(&self) -> usize {
+        2 * self.segments
+    }
+
+    /// B (T/A) at `x` (m) from the series, if it meets `tolerance` (relative to the
+    /// value) within [`MAX_ORDER`] and costs less than the direct sum; `None` otherwise.
+    pub fn b(&self, x: &Vec3, tolerance: f64) -> Option<Expanded> {
+        let d = x - self.centre;
+        let r2 = d.norm_squared();
+        let r = r2.sqrt();
+        if r.is_nan() || r <= self.radius * 1.5 {
+            return None;
+        }
+        let idx = &self.idx;
+        let mut a = [0.0; TERMS];
+        a[0] = 1.0 / r;
+        let dv = [d.x, d.y, d.z];
+        let mut sum = [0.0f64; 3];
+        let mut abs = 0.0f64;
+        for deg in 1..=MAX_ORDER + 1 {
+            if idx.start[deg + 1] > self.budget() {
+                return None;
+            }
+            let nf = deg as f64;
+            let (c1, c2) = ((2.0 * nf - 1.0) / (nf * r2), (nf - 1.0) / (nf * r2));
+            for e in idx.start[deg]..idx.start[deg + 1] {
+                let m1 = &idx.minus1[e];
+                let m2 = &idx.minus2[e];
+                let mut s1 = 0.0;
+                let mut s2 = 0.0;
+                for i in 0..3 {
+                    if m1[i] != usize::MAX {
+                        s1 += dv[i] * a[m1[i]];
+                    }
+                    if m2[i] != usize::MAX {
+                        s2 += a[m2[i]];
+                    }
+                }
+                let ae = c1 * s1 - c2 * s2;
+                a[e] = ae;
+                let ne = &self.n[e];
+                for j in 0..3 {
+                    let term = ae * ne[j];
+                    sum[j] += term;
+                    abs += term.abs();
+                }
+            }
+            // B through degree `deg` uses the moments through degree q = deg − 1.
+            let value = Vec3::new(sum[0], sum[1], sum[2]) * MU0_OVER_4PI;
+            let noise = 256.0 * f64::EPSILON * abs * MU0_OVER_4PI;
+            let allowed = SHARE * tolerance * value.norm();
+            if self.b_bound(deg - 1, r) + noise <= allowed {
+                return Some(Expanded {
+                    value,
+                    order: deg - 1,
+                });
+            }
+        }
+        None
+    }
+
+    /// A (T·m/A) at `x` (m) from the series, if its error bound and rounding noise
+    /// are below `absolute` (T·m/A) within [`MAX_ORDER`] and the budget; `None`
+    /// otherwise.
+    pub fn a(&self, x: &Vec3, absolute: f64) -> Option<Expanded> {
+        let d = x - self.centre;
+        let r2 = d.norm_squared();
+        let r = r2.sqrt();
+        if r.is_nan() || r <= self.radius * 1.5 {
+            return None;
+        }
+        let idx = &self.idx;
+        let mut a = [0.0; TERMS];
+        a[0] = 1.0 / r;
+        let dv = [d.x, d.y, d.z];
+        let mut sum = [
+            self.m[0][0] * a[0],
+            self.m[0][1] * a[0],
+            self.m[0][2] * a[0],
+        ];
+        let mut abs = sum.iter().map(|s| s.abs()).sum::<f64>();
+        for deg in 1..=MAX_ORDER {
+            if idx.start[deg + 1] > self.budget() {
+                return None;
+            }
+            let nf = deg as f64;
+            let (c1, c2) = ((2.0 * nf - 1.0) / (nf * r2), (nf - 1.0) / (nf * r2));
+            for e in idx.start[deg]..idx.start[deg + 1] {
+                let m1 = &idx.minus1[e];
+                let m2 = &idx.minus2[e];
+                let mut s1 = 0.0;
+                let mut s2 = 0.0;
+                for i in 0..3 {
+                    if m1[i] != usize::MAX {
+                        s1 += dv[i] * a[m1[i]];
+                    }
+                    if m2[i] != usize::MAX {
+                        s2 += a[m2[i]];
+                    }
+                }
+                let ae = c1 * s1 - c2 * s2;
+                a[e] = ae;
+                let me = &self.m[e];
+                for j in 0..3 {
+                    let term = ae * me[j];
+                    sum[j] += term;
+                    abs += term.abs();
+                }
+            }
+            let noise = 256.0 * f64::EPSILON * abs * MU0_OVER_4PI;
+            if self.a_bound(deg, r) + noise <= absolute {
+                return Some(Expanded {
+                    value: Vec3::new(sum[0], sum[1], sum[2]) * MU0_OVER_4PI,
+                    order: deg,
+                });
+            }
+        }
+        None
+    }
+}
+
+impl FarField {
+    /// Gross wire length G = Σ |weight| × length, m per A.
+    pub fn gross(&self) -> f64 {
+        self.gross
+    }
+
+    /// Segments the direct sum would visit.
+    pub fn segments(&self) -> usize {
+        self.segments
+    }
+
+    /// A's series at `x` (m) split by degree: `out[n]` is the degree-n part (T·m/A)
+    /// for n = 0..=`q` (q ≤ [`MAX_ORDER`]; `out` holds at least q + 1 entries); returns
+    /// Σ |terms| (T·m/A), the scale of the series' rounding noise. `x` must lie outside
+    /// the wires' sphere.
+    pub fn a_degrees(&self, x: &Vec3, q: usize, out: &mut [Vec3]) -> f64 {
+        let q = q.min(MAX_ORDER);
+        let d = x - self.centre;
+        let r2 = d.norm_squared();
+        let r = r2.sqrt();
+        let idx = &self.idx;
+        let mut a = [0.0; TERMS];
+        a[0] = 1.0 / r;
+        let dv = [d.x, d.y, d.z];
+        out[0] = Vec3::new(self.m[0][0], self.m[0][1], self.m[0][2]) * (a[0] * MU0_OVER_4PI);
+        let mut abs = out[0].abs().sum();
+        for (deg, slot) in out.iter_mut().enumerate().take(q + 1).skip(1) {
+            let nf = deg as f64;
+            let (c1, c2) = ((2.0 * nf - 1.0) / (nf * r2), (nf - 1.0) / (nf * r2));
+            let mut sum = [0.0f64; 3];
+            for e in idx.start[deg]..idx.start[deg + 1] {
+                let m1 = &idx.minus1[e];
+                let m2 = &idx.minus2[e];
+                let mut s1 = 0.0;
+                let mut s2 = 0.0;
+                for i in 0..3 {
+                    if m1[i] != usize::MAX {
+                        s1 += dv[i] * a[m1[i]];
+                    }
+                    if m2[i] != usize::MAX {
+                        s2 += a[m2[i]];
+                    }
+                }
+                let ae = c1 * s1 - c2 * s2;
+                a[e] = ae;
+                let me = &self.m[e];
+                for j in 0..3 {
+                    let term = ae * me[j];
+                    sum[j] += term;
+                    abs += term.abs() * MU0_OVER_4PI;
+                }
+            }
+            *slot = Vec3::new(sum[0], sum[1], sum[2]) * MU0_OVER_4PI;
+        }
+        abs
+    }
+
+    /// Terms of the series through degree `q`.
+    pub fn terms(&self, q: usize) -> usize {
+        self.idx.start[(q + 1).min(MAX_ORDER + 2)]
+    }
+}
+
+/// Entries of the multi-index table through degree MAX_ORDER + 1: C(MAX_ORDER + 4, 3).
+const TERMS: usize = (MAX_ORDER + 2) * (MAX_ORDER + 3) * (MAX_ORDER + 4) / 6;
+
+/// A source whose far field comes from its multipole expansion where that is within
+/// the tolerance and cheaper, and from the direct sum elsewhere. Dipoles are always
+/// summed directly.
+pub struct Accelerated<'a> {
+    source: &'a Conductors,
+    far: Option<FarField>,
+    tolerance: f64,
+}
+
+impl<'a> Accelerated<'a> {
+    /// `source` with its expansion (none when `exact`, or when it has fewer than
+    /// [`MIN_SEGMENTS`] segments); `tolerance` is relative to each point's |B|.
+    pub fn new(source: &'a Conductors, tolerance: f64, exact: bool) -> Self {
+        let far = if exact { None } else { FarField::new(source) };
+        Accelerated {
+            source,
+            far,
+            tolerance,
+        }
+    }
+
+    /// Like [`Accelerated::new`], but without an expansion when fewer than one in
+    /// sixteen of `points` (m) lies outside 1.5 times the wires' bounding sphere, where
+    /// the series may be used: then building the moments would not pay.
+    pub fn for_points(
+        source: &'a Conductors,
+        points: &[Vec3],
+        tolerance: f64,
+        exact: bool,
+    ) -> Self {
+        let use_far = !exact
+            && source.segment_count() >= MIN_SEGMENTS
+            && source.bounding_sphere().is_some_and(|(c, r)| {
+                let far = points.iter().filter(|p| (*p - c).norm() > 1.5 * r).count();
+                far * 16 >= points.len() && far > 0
+            });
+        Accelerated::new(source, tolerance, !use_far)
+    }
+
+    /// The expansion, if one is in use.
+    pub fn far(&self) -> Option<&FarField> {
+        self.far.as_ref()
+    }
+
+    fn far_b(&self, r: &Vec3) -> Option<Vec3> {
+        let far = self.far.as_ref()?;
+        let b = far.b(r, self.tolerance)?.value;
+        Some(
+            self.source
+                .dipoles
+                .iter()
+                .fold(b, |acc, d| acc + d.b_per_amp(r)),
+        )
+    }
+}
+
+impl FieldSource for Accelerated<'_> {
+    fn b_per_amp(&self, r: &Vec3) -> Vec3 {
+        self.far_b(r).unwrap_or_else(|| self.source.b_per_amp(r))
+    }
+
+    fn a_per_amp(&self, r: &Vec3) -> Vec3 {
+        self.source.a_per_amp(r)
+    }
+
+    fn a_and_gross_per_amp(&self, r: &Vec3) -> (Vec3, f64) {
+        self.source.a_and_gross_per_amp(r)
+    }
+
+    fn b_block(&self, pts: &[Vec3; 4]) -> [Vec3; 4] {
+        if self.far.is_none() {
+            return self.source.b_block(pts);
+        }
+        let far: [Option<Vec3>; 4] = std::array::from_fn(|i| self.far_b(&pts[i]));
+        if far.iter().all(Option::is_none) {
+            return self.source.b_block(pts);
+        }
+        std::array::from_fn(|i| far[i].unwrap_or_else(|| self.source.b_per_amp(&pts[i])))
+    }
+
+    fn bounding_sphere(&self) -> Option<(Vec3, f64)> {
+        self.source.bounding_sphere()
+    }
+}

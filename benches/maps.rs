@@ -10,12 +10,15 @@
 //!   radii: nearly all direct sums.
 //! * `polygon-64`: a 64³ map (275 000 points) of the 2000-segment polygon of
 //!   `benches/compare_numpy.py`, with `--exact`.
+//! * `winding-board-64`, `winding-board-32`, `winding-close-32`: smaller grids of the
+//!   same scenes, for the plot of time against points × segments.
 //!
 //! For the winding cases the direct field is also computed at every 499th grid point,
 //! to give the largest difference between the accelerated and the direct field there
 //! and the time a fully direct map would take (extrapolated from the sample).
 //! `STRAYFLUX_BENCH_CASES=winding-board,polygon-64` picks cases; the results are also
-//! written to `target/bench-maps.csv` for the README's plot.
+//! written to `target/bench-maps.csv`, and the log–log plot of time against
+//! points × segments (direct and accelerated) to `target/bench-maps.svg`.
 
 use std::time::Instant;
 use strayflux::Scene;
@@ -37,10 +40,17 @@ current = { frequency = "100 kHz", peak = "1 A" }
 [[map]]
 id = "m"
 kind = "box"
-min = ["-H mm", "-H mm", "-H mm"]
-max = ["H mm", "H mm", "H mm"]
-cells = [127, 127, 127]
+min = ["-HALF mm", "-HALF mm", "-HALF mm"]
+max = ["HALF mm", "HALF mm", "HALF mm"]
+cells = [CELLS, CELLS, CELLS]
 "#;
+
+/// The helix scene with a cube map `half` mm each side of the centre, `cells` cells.
+fn helix(half: u32, cells: u32) -> String {
+    HELIX
+        .replace("HALF", &half.to_string())
+        .replace("CELLS", &cells.to_string())
+}
 
 fn polygon_scene() -> String {
     let n = 2000;
@@ -104,8 +114,11 @@ fn main() {
     std::fs::create_dir_all(&dir).unwrap();
     let chosen = std::env::var("STRAYFLUX_BENCH_CASES").ok();
     let cases: Vec<(&str, String, bool)> = vec![
-        ("winding-board", HELIX.replace('H', "100"), false),
-        ("winding-close", HELIX.replace('H', "25"), false),
+        ("winding-board", helix(100, 127), false),
+        ("winding-close", helix(25, 127), false),
+        ("winding-board-64", helix(100, 63), false),
+        ("winding-board-32", helix(100, 31), false),
+        ("winding-close-32", helix(25, 31), false),
         ("polygon-64", polygon_scene(), true),
     ];
     let mut csv = String::from(
@@ -186,9 +199,90 @@ fn main() {
         ));
         let _ = std::fs::remove_dir_all(&out);
     }
-    std::fs::write(
-        std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target/bench-maps.csv"),
-        csv,
-    )
-    .unwrap();
+    let target = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target");
+    std::fs::write(target.join("bench-maps.csv"), &csv).unwrap();
+    if let Err(e) = plot(&csv, &target.join("bench-maps.svg")) {
+        eprintln!("plot not written: {e}");
+    }
+}
+
+/// Log–log plot of wall time against points × segments: measured direct maps, direct
+/// times extrapolated from the sample, and accelerated maps.
+fn plot(csv: &str, path: &std::path::Path) -> Result<(), Box<dyn std::error::Error>> {
+    use plotters::prelude::*;
+    let (mut direct, mut estimated, mut fast) = (Vec::new(), Vec::new(), Vec::new());
+    for line in csv.lines().skip(1) {
+        let f: Vec<&str> = line.split(',').collect();
+        let pairs: f64 = f[3].parse()?;
+        let secs: f64 = f[4].parse()?;
+        let est: f64 = f[5].parse()?;
+        if est.is_nan() {
+            direct.push((pairs, secs));
+        } else {
+            fast.push((pairs, secs));
+            estimated.push((pairs, est));
+        }
+    }
+    let all: Vec<f64> = direct
+        .iter()
+        .chain(&estimated)
+        .chain(&fast)
+        .map(|p| p.1)
+        .collect();
+    let xs: Vec<f64> = direct.iter().chain(&fast).map(|p| p.0).collect();
+    let (x0, x1) = (
+        xs.iter().copied().fold(f64::INFINITY, f64::min) / 2.0,
+        xs.iter().copied().fold(0.0, f64::max) * 2.0,
+    );
+    let (y0, y1) = (
+        all.iter().copied().fold(f64::INFINITY, f64::min) / 2.0,
+        all.iter().copied().fold(0.0, f64::max) * 2.0,
+    );
+    let root = SVGBackend::new(path, (760, 520)).into_drawing_area();
+    root.fill(&WHITE)?;
+    let mut chart = ChartBuilder::on(&root)
+        .caption(
+            "strayflux map: wall time against points × segments (2 cores)",
+            ("sans-serif", 18),
+        )
+        .margin(16)
+        .x_label_area_size(44)
+        .y_label_area_size(64)
+        .build_cartesian_2d((x0..x1).log_scale(), (y0..y1).log_scale())?;
+    chart
+        .configure_mesh()
+        .x_desc("grid points × source segments")
+        .y_desc("wall time, s")
+        .x_label_formatter(&|v| format!("{v:.0e}"))
+        .y_label_formatter(&|v| format!("{v}"))
+        .draw()?;
+    let series = [
+        (&direct, BLUE, "direct (--exact), measured"),
+        (
+            &estimated,
+            RGBColor(120, 120, 120),
+            "direct, extrapolated from a sample",
+        ),
+        (&fast, RED, "with the far-field expansion, measured"),
+    ];
+    for (points, colour, label) in series {
+        let mut sorted = points.clone();
+        sorted.sort_by(|a, b| a.0.total_cmp(&b.0));
+        chart
+            .draw_series(
+                sorted
+                    .iter()
+                    .map(|&(x, y)| Circle::new((x, y), 5, colour.filled())),
+            )?
+            .label(label)
+            .legend(move |(x, y)| Circle::new((x + 10, y), 5, colour.filled()));
+    }
+    chart
+        .configure_series_labels()
+        .position(SeriesLabelPosition::UpperLeft)
+        .background_style(WHITE.mix(0.9))
+        .border_style(BLACK)
+        .draw()?;
+    root.present()?;
+    Ok(())
 }

@@ -409,8 +409,8 @@ pub fn map(
             } else {
                 format!("{}.vti", m.id)
             };
-            let xml = crate::output::vtk::image_data(m, *f, &b).map_err(Error::Run)?;
-            files::write_atomic(&out_dir.join(&name), xml.as_bytes())?;
+            let vti = crate::output::vtk::image_data(m, *f, &b).map_err(Error::Run)?;
+            files::write_atomic(&out_dir.join(&name), &vti)?;
             written.push(out_dir.join(&name).display().to_string());
             if m.plane && k == 0 {
                 match crate::output::quicklook::plane_svg(&scene, m, *f, &b) {

@@ -191,7 +191,7 @@ pub fn flux_from_far(
     };
     let (first, _) = flux_through(2);
     let guess: f64 = first.iter().sum::<f64>().abs();
-    let q = (2..=MAX_ORDER).find(|&q| bound(q) <= 0.05 * tolerance * guess)?;
+    let q = (2..=far.order()).find(|&q| bound(q) <= 0.05 * tolerance * guess)?;
     // A term costs about half a segment–point pair: pay only if clearly cheaper.
     if far.terms(q) * 2 > far.segments() {
         return None;

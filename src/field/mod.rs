@@ -52,6 +52,18 @@ pub trait FieldSource: Send + Sync {
         pts.map(|p| self.b_per_amp(&p))
     }
 
+    /// B per ampere (T/A) at every point of `pts` (m), in order: by default in blocks of
+    /// four ([`FieldSource::b_block`], a short last block padded with copies of its last
+    /// point). Each point's value does not depend on the other points.
+    fn b_many(&self, pts: &[Vec3]) -> Vec<Vec3> {
+        let mut out = Vec::with_capacity(pts.len());
+        for c in pts.chunks(4) {
+            let block: [Vec3; 4] = std::array::from_fn(|i| c[i.min(c.len() - 1)]);
+            out.extend(self.b_block(&block).into_iter().take(c.len()));
+        }
+        out
+    }
+
     /// A sphere (centre m, radius m) holding every conductor, if the source knows one:
     /// outside it the fields are analytic, which lets quadrature skip error checks far
     /// away.
@@ -183,15 +195,8 @@ impl FieldSource for Conductors {
 /// B per ampere (T/A) of `source` at every point (m), in parallel over points. Each
 /// point's sum runs in a fixed order, so results do not depend on the thread count.
 pub fn b_at_points<S: FieldSource + ?Sized>(source: &S, points: &[Vec3]) -> Vec<Vec3> {
-    // Blocks of four points share one pass over the segments; a short last block is
-    // padded with copies of its last point.
-    let blocks: Vec<[Vec3; 4]> = points
-        .par_chunks(4)
-        .with_min_len(4)
-        .map(|c| {
-            let block: [Vec3; 4] = std::array::from_fn(|i| c[i.min(c.len() - 1)]);
-            source.b_block(&block)
-        })
-        .collect();
-    blocks.into_iter().flatten().take(points.len()).collect()
+    // Fixed chunks of points (the same for any thread count), each evaluated by the
+    // source in blocks of four that share one pass over the segments.
+    let chunks: Vec<Vec<Vec3>> = points.par_chunks(64).map(|c| source.b_many(c)).collect();
+    chunks.into_iter().flatten().collect()
 }

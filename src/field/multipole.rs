@@ -24,7 +24,7 @@
 //! |ΔA| ≤ μ0/4π · G/R · t^{q+1}/(1 − t),
 //! |ΔB| ≤ μ0/4π · G/R² · √2 t^{q+1} ((q + 2) − (q + 1) t)/(1 − t)².
 //!
-//! A point is evaluated by the expansion only if, at some degree q ≤ [`MAX_ORDER`],
+//! A point is evaluated by the expansion only if, at some degree q up to the order kept,
 //! this bound and the series' own rounding noise fall below a tenth of the tolerance
 //! times the value found, and only while the series costs less than the direct sum;
 //! otherwise it is summed directly. So the expansion's result is within the tolerance
@@ -33,8 +33,17 @@
 use super::{Conductors, FieldSource, MU0_OVER_4PI, Vec3};
 use rayon::prelude::*;
 
-/// Highest multipole degree kept in the moments.
-pub const MAX_ORDER: usize = 16;
+/// Highest multipole degree any expansion keeps (maps keep this many; see
+/// [`FarField::with_order`]).
+pub const MAX_ORDER: usize = 24;
+
+/// The B series' degree (through moments of degree 2) after which a point whose bound
+/// cannot come under its allowance within the order kept gives up.
+const GUESS_DEGREE: usize = 3;
+
+/// The degree kept by [`FarField::new`]: enough for sweeps, whose moments must be cheap
+/// to build compared with a few hundred flux integrals.
+pub const SWEEP_ORDER: usize = 16;
 
 /// Sources with fewer segments than this are always summed directly: their direct sum
 /// is as cheap as the series.
@@ -55,6 +64,10 @@ struct Indices {
     minus1: Vec<[usize; 3]>,
     /// Entry of k − 2e_i, or `usize::MAX`.
     minus2: Vec<[usize; 3]>,
+    /// As `minus1`, with a zero slot (index `TERMS`) for missing entries.
+    minus1z: Vec<[usize; 3]>,
+    /// As `minus2`, with the zero slot for missing entries.
+    minus2z: Vec<[usize; 3]>,
 }
 
 fn index_of(k: [usize; 3]) -> usize {
@@ -97,11 +110,19 @@ impl Indices {
             .iter()
             .map(|&kk| std::array::from_fn(|i| less(kk, i, 2)))
             .collect();
+        let zero = |v: &Vec<[usize; 3]>| -> Vec<[usize; 3]> {
+            v.iter()
+                .map(|m| m.map(|i| if i == usize::MAX { TERMS } else { i }))
+                .collect()
+        };
+        let (minus1z, minus2z) = (zero(&minus1), zero(&minus2));
         Indices {
             k,
             start,
             minus1,
             minus2,
+            minus1z,
+            minus2z,
         }
     }
 }
@@ -117,6 +138,8 @@ pub struct FarField {
     gross: f64,
     /// Segments summed by the direct path.
     segments: usize,
+    /// Highest degree of the moments kept (≤ MAX_ORDER).
+    order: usize,
     idx: Indices,
     /// M_{i,k} for |k| ≤ MAX_ORDER, m^{|k|+1}.
     m: Vec<[f64; 3]>,
@@ -145,9 +168,16 @@ pub struct Expanded {
 }
 
 impl FarField {
-    /// The moments of `wires`' conductors, or `None` when there are too few segments
-    /// for the series to pay.
+    /// The moments of `wires`' conductors through degree [`SWEEP_ORDER`], or `None`
+    /// when there are too few segments for the series to pay.
     pub fn new(wires: &Conductors) -> Option<Self> {
+        Self::with_order(wires, SWEEP_ORDER)
+    }
+
+    /// The moments through degree `order` (at most [`MAX_ORDER`]): a higher degree
+    /// reaches closer to the source but costs more to build (segments × order³).
+    pub fn with_order(wires: &Conductors, order: usize) -> Option<Self> {
+        let order = order.clamp(2, MAX_ORDER);
         let segments = wires.segment_count();
         if segments < MIN_SEGMENTS {
             return None;
@@ -159,10 +189,10 @@ impl FarField {
             .iter()
             .map(|w| w.wire_radius)
             .fold(0.0, f64::max);
-        let idx = Indices::new(MAX_ORDER + 1);
-        let terms = idx.start[MAX_ORDER + 1];
-        // Gauss–Legendre on [0, 1], exact for degree MAX_ORDER along a segment.
-        let (gx, gw) = crate::quadrature::gauss_legendre(MAX_ORDER / 2 + 1);
+        let idx = Indices::new(order + 1);
+        let terms = idx.start[order + 1];
+        // Gauss–Legendre on [0, 1], exact for degree `order` along a segment.
+        let (gx, gw) = crate::quadrature::gauss_legendre(order / 2 + 1);
         let nodes: Vec<(f64, f64)> = gx
             .iter()
             .zip(&gw)
@@ -192,7 +222,7 @@ impl FarField {
                         px[0] = 1.0;
                         py[0] = 1.0;
                         pz[0] = 1.0;
-                        for e in 1..=MAX_ORDER {
+                        for e in 1..=order {
                             px[e] = px[e - 1] * y.x;
                             py[e] = py[e - 1] * y.y;
                             pz[e] = pz[e - 1] * y.z;
@@ -244,6 +274,7 @@ impl FarField {
             radius: r + pad,
             gross,
             segments,
+            order,
             idx,
             m,
             n,
@@ -278,14 +309,114 @@ impl FarField {
         MU0_OVER_4PI * self.gross / r_dist * t.powf(q as f64 + 1.0) / (1.0 - t)
     }
 
+    /// Whether, judged by the value found through [`GUESS_DEGREE`] (dipole and
+    /// quadrupole), the bound can come under `allowed` (T/A) at distance `r_dist` (m)
+    /// within the order kept, with a margin of 4 on the value. Only used to stop early:
+    /// acceptance is always decided by the bound against the value actually found.
+    fn can_reach(&self, r_dist: f64, allowed: f64) -> bool {
+        self.b_bound(self.order, r_dist) <= 4.0 * allowed
+    }
+
     /// The most series terms worth computing instead of the direct sum: a term costs
     /// about half a segment–point pair.
     fn budget(&self) -> usize {
         2 * self.segments
     }
 
+    /// [`FarField::b`] at four points at once, one per SIMD lane: each lane does the
+    /// same operations in the same order as `b` and stops at its own degree, so the
+    /// results are identical to four calls of `b`.
+    pub fn b4(&self, xs: &[Vec3; 4], tolerance: f64) -> [Option<Expanded>; 4] {
+        use wide::f64x4;
+        let mut active = [false; 4];
+        let mut dv = [[0.0f64; 4]; 3];
+        let mut r2s = [0.0f64; 4];
+        let mut rs = [0.0f64; 4];
+        for (l, x) in xs.iter().enumerate() {
+            let d = x - self.centre;
+            let r2 = d.norm_squared();
+            let r = r2.sqrt();
+            let ok = !r.is_nan() && r > self.radius * 1.5;
+            active[l] = ok;
+            // Idle lanes compute at a harmless far point.
+            let d = if ok {
+                d
+            } else {
+                Vec3::new(4.0 * self.radius.max(1e-9), 0.0, 0.0)
+            };
+            dv[0][l] = d.x;
+            dv[1][l] = d.y;
+            dv[2][l] = d.z;
+            r2s[l] = d.norm_squared();
+            rs[l] = r2s[l].sqrt();
+        }
+        let mut out = [None; 4];
+        if !active.iter().any(|&a| a) {
+            return out;
+        }
+        let idx = &self.idx;
+        let r2 = f64x4::from(r2s);
+        let d = [f64x4::from(dv[0]), f64x4::from(dv[1]), f64x4::from(dv[2])];
+        let mut buf = Lanes::take();
+        let a = buf.get();
+        a[TERMS] = f64x4::ZERO;
+        a[0] = f64x4::ONE / f64x4::from(rs);
+        let mut sum = [f64x4::ZERO; 3];
+        let mut abs = f64x4::ZERO;
+        let mut pending = active;
+        for deg in 1..=self.order + 1 {
+            if idx.start[deg + 1] > self.budget() {
+                break;
+            }
+            let nf = deg as f64;
+            let c1 = f64x4::splat(2.0 * nf - 1.0) / (f64x4::splat(nf) * r2);
+            let c2 = f64x4::splat(nf - 1.0) / (f64x4::splat(nf) * r2);
+            for e in idx.start[deg]..idx.start[deg + 1] {
+                let m1 = &idx.minus1z[e];
+                let m2 = &idx.minus2z[e];
+                let s1 = d[0] * a[m1[0]] + d[1] * a[m1[1]] + d[2] * a[m1[2]];
+                let s2 = a[m2[0]] + a[m2[1]] + a[m2[2]];
+                let ae = c1 * s1 - c2 * s2;
+                a[e] = ae;
+                let ne = &self.n[e];
+                for j in 0..3 {
+                    let term = ae * f64x4::splat(ne[j]);
+                    sum[j] += term;
+                    abs += term.abs();
+                }
+            }
+            let (sx, sy, sz, ab) = (
+                sum[0].to_array(),
+                sum[1].to_array(),
+                sum[2].to_array(),
+                abs.to_array(),
+            );
+            for l in 0..4 {
+                if !pending[l] {
+                    continue;
+                }
+                let value = Vec3::new(sx[l], sy[l], sz[l]) * MU0_OVER_4PI;
+                let noise = 256.0 * f64::EPSILON * ab[l] * MU0_OVER_4PI;
+                let allowed = SHARE * tolerance * value.norm();
+                if self.b_bound(deg - 1, rs[l]) + noise <= allowed {
+                    out[l] = Some(Expanded {
+                        value,
+                        order: deg - 1,
+                    });
+                    pending[l] = false;
+                } else if deg == GUESS_DEGREE && !self.can_reach(rs[l], allowed) {
+                    pending[l] = false;
+                }
+            }
+            if !pending.iter().any(|&p| p) {
+                break;
+            }
+        }
+        out
+    }
+
     /// B (T/A) at `x` (m) from the series, if it meets `tolerance` (relative to the
-    /// value) within [`MAX_ORDER`] and costs less than the direct sum; `None` otherwise.
+    /// value) within the order kept and costs less than the direct sum; `None` otherwise.
     pub fn b(&self, x: &Vec3, tolerance: f64) -> Option<Expanded> {
         let d = x - self.centre;
         let r2 = d.norm_squared();
@@ -294,12 +425,13 @@ impl FarField {
             return None;
         }
         let idx = &self.idx;
-        let mut a = [0.0; TERMS];
+        let mut buf = Coefficients::take();
+        let a = buf.get();
         a[0] = 1.0 / r;
         let dv = [d.x, d.y, d.z];
         let mut sum = [0.0f64; 3];
         let mut abs = 0.0f64;
-        for deg in 1..=MAX_ORDER + 1 {
+        for deg in 1..=self.order + 1 {
             if idx.start[deg + 1] > self.budget() {
                 return None;
             }
@@ -337,12 +469,15 @@ impl FarField {
                     order: deg - 1,
                 });
             }
+            if deg == GUESS_DEGREE && !self.can_reach(r, allowed) {
+                return None;
+            }
         }
         None
     }
 
     /// A (T·m/A) at `x` (m) from the series, if its error bound and rounding noise
-    /// are below `absolute` (T·m/A) within [`MAX_ORDER`] and the budget; `None`
+    /// are below `absolute` (T·m/A) within the order kept and the budget; `None`
     /// otherwise.
     pub fn a(&self, x: &Vec3, absolute: f64) -> Option<Expanded> {
         let d = x - self.centre;
@@ -352,7 +487,8 @@ impl FarField {
             return None;
         }
         let idx = &self.idx;
-        let mut a = [0.0; TERMS];
+        let mut buf = Coefficients::take();
+        let a = buf.get();
         a[0] = 1.0 / r;
         let dv = [d.x, d.y, d.z];
         let mut sum = [
@@ -361,7 +497,7 @@ impl FarField {
             self.m[0][2] * a[0],
         ];
         let mut abs = sum.iter().map(|s| s.abs()).sum::<f64>();
-        for deg in 1..=MAX_ORDER {
+        for deg in 1..=self.order {
             if idx.start[deg + 1] > self.budget() {
                 return None;
             }
@@ -407,22 +543,28 @@ impl FarField {
         self.gross
     }
 
+    /// Highest degree of the moments kept.
+    pub fn order(&self) -> usize {
+        self.order
+    }
+
     /// Segments the direct sum would visit.
     pub fn segments(&self) -> usize {
         self.segments
     }
 
     /// A's series at `x` (m) split by degree: `out[n]` is the degree-n part (T·m/A)
-    /// for n = 0..=`q` (q ≤ [`MAX_ORDER`]; `out` holds at least q + 1 entries); returns
+    /// for n = 0..=`q` (q ≤ the order kept; `out` holds at least q + 1 entries); returns
     /// Σ |terms| (T·m/A), the scale of the series' rounding noise. `x` must lie outside
     /// the wires' sphere.
     pub fn a_degrees(&self, x: &Vec3, q: usize, out: &mut [Vec3]) -> f64 {
-        let q = q.min(MAX_ORDER);
+        let q = q.min(self.order);
         let d = x - self.centre;
         let r2 = d.norm_squared();
         let r = r2.sqrt();
         let idx = &self.idx;
-        let mut a = [0.0; TERMS];
+        let mut buf = Coefficients::take();
+        let a = buf.get();
         a[0] = 1.0 / r;
         let dv = [d.x, d.y, d.z];
         out[0] = Vec3::new(self.m[0][0], self.m[0][1], self.m[0][2]) * (a[0] * MU0_OVER_4PI);
@@ -460,12 +602,73 @@ impl FarField {
 
     /// Terms of the series through degree `q`.
     pub fn terms(&self, q: usize) -> usize {
-        self.idx.start[(q + 1).min(MAX_ORDER + 2)]
+        self.idx.start[(q + 1).min(self.order + 2)]
     }
 }
 
 /// Entries of the multi-index table through degree MAX_ORDER + 1: C(MAX_ORDER + 4, 3).
 const TERMS: usize = (MAX_ORDER + 2) * (MAX_ORDER + 3) * (MAX_ORDER + 4) / 6;
+
+/// A per-thread scratch array for the Taylor coefficients a_k, taken for one
+/// evaluation and put back when dropped (every entry is written before it is read, so
+/// it is never cleared).
+struct Coefficients(Option<Box<[f64; TERMS]>>);
+
+thread_local! {
+    static SCRATCH: std::cell::Cell<Option<Box<[f64; TERMS]>>> =
+        const { std::cell::Cell::new(None) };
+}
+
+impl Coefficients {
+    fn take() -> Self {
+        let b = SCRATCH
+            .with(|c| c.take())
+            .unwrap_or_else(|| Box::new([0.0; TERMS]));
+        Coefficients(Some(b))
+    }
+
+    fn get(&mut self) -> &mut [f64; TERMS] {
+        self.0.get_or_insert_with(|| Box::new([0.0; TERMS]))
+    }
+}
+
+/// The four-lane scratch array of [`FarField::b4`], with one extra slot held at zero.
+struct Lanes(Option<Box<[wide::f64x4; TERMS + 1]>>);
+
+thread_local! {
+    static LANES: std::cell::Cell<Option<Box<[wide::f64x4; TERMS + 1]>>> =
+        const { std::cell::Cell::new(None) };
+}
+
+impl Lanes {
+    fn take() -> Self {
+        let b = LANES
+            .with(|c| c.take())
+            .unwrap_or_else(|| Box::new([wide::f64x4::ZERO; TERMS + 1]));
+        Lanes(Some(b))
+    }
+
+    fn get(&mut self) -> &mut [wide::f64x4; TERMS + 1] {
+        self.0
+            .get_or_insert_with(|| Box::new([wide::f64x4::ZERO; TERMS + 1]))
+    }
+}
+
+impl Drop for Lanes {
+    fn drop(&mut self) {
+        if let Some(b) = self.0.take() {
+            LANES.with(|c| c.set(Some(b)));
+        }
+    }
+}
+
+impl Drop for Coefficients {
+    fn drop(&mut self) {
+        if let Some(b) = self.0.take() {
+            SCRATCH.with(|c| c.set(Some(b)));
+        }
+    }
+}
 
 /// A source whose far field comes from its multipole expansion where that is within
 /// the tolerance and cheaper, and from the direct sum elsewhere. Dipoles are always
@@ -480,7 +683,11 @@ impl<'a> Accelerated<'a> {
     /// `source` with its expansion (none when `exact`, or when it has fewer than
     /// [`MIN_SEGMENTS`] segments); `tolerance` is relative to each point's |B|.
     pub fn new(source: &'a Conductors, tolerance: f64, exact: bool) -> Self {
-        let far = if exact { None } else { FarField::new(source) };
+        let far = if exact {
+            None
+        } else {
+            FarField::with_order(source, MAX_ORDER)
+        };
         Accelerated {
             source,
             far,
@@ -503,7 +710,22 @@ impl<'a> Accelerated<'a> {
                 let far = points.iter().filter(|p| (*p - c).norm() > 1.5 * r).count();
                 far * 16 >= points.len() && far > 0
             });
-        Accelerated::new(source, tolerance, !use_far)
+        // Many points pay for the dearer moments that reach closer to the source.
+        let order = if points.len() >= 100_000 {
+            MAX_ORDER
+        } else {
+            SWEEP_ORDER
+        };
+        let far = if use_far {
+            FarField::with_order(source, order)
+        } else {
+            None
+        };
+        Accelerated {
+            source,
+            far,
+            tolerance,
+        }
     }
 
     /// The expansion, if one is in use.
@@ -540,11 +762,53 @@ impl FieldSource for Accelerated<'_> {
         if self.far.is_none() {
             return self.source.b_block(pts);
         }
-        let far: [Option<Vec3>; 4] = std::array::from_fn(|i| self.far_b(&pts[i]));
+        let series = self.far.as_ref().map(|f| f.b4(pts, self.tolerance));
+        let far: [Option<Vec3>; 4] = std::array::from_fn(|i| {
+            let b = series.as_ref()?[i]?.value;
+            Some(
+                self.source
+                    .dipoles
+                    .iter()
+                    .fold(b, |acc, d| acc + d.b_per_amp(&pts[i])),
+            )
+        });
         if far.iter().all(Option::is_none) {
             return self.source.b_block(pts);
         }
         std::array::from_fn(|i| far[i].unwrap_or_else(|| self.source.b_per_amp(&pts[i])))
+    }
+
+    fn b_many(&self, pts: &[Vec3]) -> Vec<Vec3> {
+        let Some(far) = &self.far else {
+            return self.source.b_many(pts);
+        };
+        // The series where it holds; the points where it does not are gathered and
+        // summed directly in full blocks of four.
+        let mut out = Vec::with_capacity(pts.len());
+        let mut direct = Vec::new();
+        for c in pts.chunks(4) {
+            let block: [Vec3; 4] = std::array::from_fn(|i| c[i.min(c.len() - 1)]);
+            let series = far.b4(&block, self.tolerance);
+            for (i, p) in c.iter().enumerate() {
+                match series[i] {
+                    Some(e) => out.push(
+                        self.source
+                            .dipoles
+                            .iter()
+                            .fold(e.value, |acc, d| acc + d.b_per_amp(p)),
+                    ),
+                    None => {
+                        direct.push(out.len());
+                        out.push(*p);
+                    }
+                }
+            }
+        }
+        let gathered: Vec<Vec3> = direct.iter().map(|&k| out[k]).collect();
+        for (k, b) in direct.iter().zip(self.source.b_many(&gathered)) {
+            out[*k] = b;
+        }
+        out
     }
 
     fn bounding_sphere(&self) -> Option<(Vec3, f64)> {

@@ -390,7 +390,7 @@ pub fn map(
         let freqs = map_frequencies(m, &lines_hz);
         // Shielded maps solve every line per chunk of points; free-space maps keep B
         // per ampere and scale it line by line.
-        let (per_amp, shielded) = if crate::shield::scene_is_shielded(&scene) {
+        let (mut per_amp, mut shielded) = if crate::shield::scene_is_shielded(&scene) {
             (
                 Vec::new(),
                 Some(chunked_shielded(&scene, &points, &freqs, &tick)?),
@@ -398,12 +398,18 @@ pub fn map(
         } else {
             (chunked_fields(&scene, &points, &tick), None)
         };
+        // Memory: the grid's points are not needed any more, and each line's phasors are
+        // built (or taken) one line at a time; the per-ampere fields go with the last.
+        drop(points);
         let mut entries = Vec::new();
         for (k, f) in freqs.iter().enumerate() {
-            let b = match &shielded {
-                Some(lines) => lines[k].clone(),
+            let b = match &mut shielded {
+                Some(lines) => std::mem::take(&mut lines[k]),
                 None => line_field(&scene, &per_amp, *f),
             };
+            if k + 1 == freqs.len() {
+                per_amp = Vec::new();
+            }
             let name = if freqs.len() > 1 {
                 format!("{}-line{}.vti", m.id, k + 1)
             } else {

@@ -44,13 +44,13 @@ pub fn map_frequencies(spec: &MapSpec, lines_hz: &[f64]) -> Vec<f64> {
     }
 }
 
-/// Bytes a map needs at its peak: the per-ampere fields of every source (24 B per point
-/// each), one line's phasors and output arrays (about 112 B per point), and the file
-/// being assembled in memory before it is written (about 3 copies of 56 B per point:
-/// raw, compressed, base64 text).
+/// Bytes a map needs at its peak: the grid's points (24 B each) while the fields are
+/// summed, the per-ampere fields of every source (24 B per point each), one line's
+/// phasors (48 B per point) and its compressed file (at most 56 B per point: the
+/// doubles hardly compress), plus 64 MiB for the rest.
 pub fn memory_estimate(scene: &Scene, spec: &MapSpec) -> u64 {
     let points = spec.point_count() as u64;
-    let per_point = 24 * scene.sources.len() as u64 + 112 + 3 * 56;
+    let per_point = 24 + 24 * scene.sources.len() as u64 + 48 + 56;
     points * per_point + (64 << 20)
 }
 

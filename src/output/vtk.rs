@@ -63,17 +63,19 @@ const BLOCK: usize = 1 << 15;
 /// blocks, uncompressed block size, uncompressed size of a partial last block or 0,
 /// then each block's compressed size) followed by the blocks, each compressed on its
 /// own (in parallel; the bytes do not depend on the thread count).
-fn compressed(values: &[f64]) -> Result<Vec<u8>, String> {
+fn compressed<F: Fn(usize) -> f64 + Sync>(count: usize, value: F) -> Result<Vec<u8>, String> {
     use flate2::{Compression, write::ZlibEncoder};
     use rayon::prelude::*;
     use std::io::Write;
+    // The doubles are generated block by block, so no copy of the whole array is made.
     let per_block = BLOCK / 8;
-    let blocks: Vec<Vec<u8>> = values
-        .par_chunks(per_block)
-        .map(|chunk| {
-            let mut raw = Vec::with_capacity(chunk.len() * 8);
-            for v in chunk {
-                raw.extend_from_slice(&v.to_le_bytes());
+    let blocks: Vec<Vec<u8>> = (0..count.div_ceil(per_block))
+        .into_par_iter()
+        .map(|k| {
+            let range = k * per_block..((k + 1) * per_block).min(count);
+            let mut raw = Vec::with_capacity(range.len() * 8);
+            for i in range {
+                raw.extend_from_slice(&value(i).to_le_bytes());
             }
             let mut e = ZlibEncoder::new(Vec::new(), Compression::new(ZLIB_LEVEL));
             e.write_all(&raw)?;
@@ -81,7 +83,7 @@ fn compressed(values: &[f64]) -> Result<Vec<u8>, String> {
         })
         .collect::<Result<_, std::io::Error>>()
         .map_err(|e| format!("cannot compress the VTK data: {e}"))?;
-    let total = values.len() * 8;
+    let total = count * 8;
     let mut out = Vec::new();
     for word in [blocks.len(), BLOCK, total % BLOCK] {
         out.extend_from_slice(&(word as u64).to_le_bytes());
@@ -103,22 +105,17 @@ fn compressed(values: &[f64]) -> Result<Vec<u8>, String> {
 /// map's grid uses.
 pub fn image_data(spec: &MapSpec, frequency: f64, b: &[[Complex64; 3]]) -> Result<Vec<u8>, String> {
     let n = b.len();
-    let mut re = Vec::with_capacity(3 * n);
-    let mut im = Vec::with_capacity(3 * n);
-    let mut rms = Vec::with_capacity(n);
-    for p in b {
-        for c in p {
-            re.push(c.re);
-            im.push(c.im);
-        }
-        rms.push((p.iter().map(|c| c.norm_sqr()).sum::<f64>() / 2.0).sqrt());
-    }
     let arrays = [
-        ("B_re", 3, compressed(&re)?),
-        ("B_im", 3, compressed(&im)?),
-        ("B_rms", 1, compressed(&rms)?),
+        ("B_re", 3, compressed(3 * n, |i| b[i / 3][i % 3].re)?),
+        ("B_im", 3, compressed(3 * n, |i| b[i / 3][i % 3].im)?),
+        (
+            "B_rms",
+            1,
+            compressed(n, |i| {
+                (b[i].iter().map(|c| c.norm_sqr()).sum::<f64>() / 2.0).sqrt()
+            })?,
+        ),
     ];
-    drop((re, im, rms));
     let [nx, ny, nz] = spec.points.map(|p| p - 1);
     let extent = format!("0 {nx} 0 {ny} 0 {nz}");
     let (o, d) = (spec.origin, spec.spacing);

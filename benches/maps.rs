@@ -110,6 +110,14 @@ fn main() {
     if std::env::args().any(|a| a == "--list" || a == "--test") {
         return;
     }
+    // Re-plot an earlier run's CSV without running the maps again.
+    if let Ok(csv) = std::env::var("STRAYFLUX_BENCH_REPLOT") {
+        let text = std::fs::read_to_string(&csv).unwrap();
+        let svg = std::path::Path::new(&csv).with_extension("svg");
+        plot(&text, &svg).unwrap();
+        println!("wrote {}", svg.display());
+        return;
+    }
     let dir = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target/bench-maps");
     std::fs::create_dir_all(&dir).unwrap();
     let chosen = std::env::var("STRAYFLUX_BENCH_CASES").ok();
@@ -210,7 +218,8 @@ fn main() {
 /// times extrapolated from the sample, and accelerated maps.
 fn plot(csv: &str, path: &std::path::Path) -> Result<(), Box<dyn std::error::Error>> {
     use plotters::prelude::*;
-    let (mut direct, mut estimated, mut fast) = (Vec::new(), Vec::new(), Vec::new());
+    let (mut direct, mut estimated, mut fast, mut close) =
+        (Vec::new(), Vec::new(), Vec::new(), Vec::new());
     for line in csv.lines().skip(1) {
         let f: Vec<&str> = line.split(',').collect();
         let pairs: f64 = f[3].parse()?;
@@ -219,7 +228,11 @@ fn plot(csv: &str, path: &std::path::Path) -> Result<(), Box<dyn std::error::Err
         if est.is_nan() {
             direct.push((pairs, secs));
         } else {
-            fast.push((pairs, secs));
+            if f[0].contains("close") {
+                close.push((pairs, secs));
+            } else {
+                fast.push((pairs, secs));
+            }
             estimated.push((pairs, est));
         }
     }
@@ -227,9 +240,15 @@ fn plot(csv: &str, path: &std::path::Path) -> Result<(), Box<dyn std::error::Err
         .iter()
         .chain(&estimated)
         .chain(&fast)
+        .chain(&close)
         .map(|p| p.1)
         .collect();
-    let xs: Vec<f64> = direct.iter().chain(&fast).map(|p| p.0).collect();
+    let xs: Vec<f64> = direct
+        .iter()
+        .chain(&fast)
+        .chain(&close)
+        .map(|p| p.0)
+        .collect();
     let (x0, x1) = (
         xs.iter().copied().fold(f64::INFINITY, f64::min) / 2.0,
         xs.iter().copied().fold(0.0, f64::max) * 2.0,
@@ -263,7 +282,16 @@ fn plot(csv: &str, path: &std::path::Path) -> Result<(), Box<dyn std::error::Err
             RGBColor(120, 120, 120),
             "direct, extrapolated from a sample",
         ),
-        (&fast, RED, "with the far-field expansion, measured"),
+        (
+            &fast,
+            RED,
+            "with the expansion, map ±10 winding radii, measured",
+        ),
+        (
+            &close,
+            RGBColor(230, 140, 0),
+            "with the expansion, map ±2.5 winding radii, measured",
+        ),
     ];
     for (points, colour, label) in series {
         let mut sorted = points.clone();

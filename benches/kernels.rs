@@ -4,7 +4,9 @@
 //! * `potential/2000seg` and `field/2000seg`: A and B of a 2000-segment polygon at 1000
 //!   points (2e6 pairs per iteration).
 //! * `bound/sqrt+div`: 2e6 square roots and divisions, four-wide on every thread: the
-//!   machine's own bound for the field kernel (one of each per pair), in the same units.
+//!   machine's own bound for the field kernel (one of each per pair), in the same units;
+//!   `bound/sqrt+div-avx2` the same in 256-bit registers, the width the field kernel
+//!   uses on a CPU with AVX2.
 //! * `sweep/1000steps-2000seg`: a 1000-step distance sweep of a 10 × 5 mm rectangular
 //!   victim past a 2000-segment polygon source (the target: well under 1 s).
 //! * `shielded/couple-demo`: a shielded `couple` of one victim (see [`shielded`]).
@@ -57,6 +59,14 @@ fn kernels(c: &mut Criterion) {
         .map(|k| 1.0 + (k % 1000) as f64 * 1e-3)
         .collect();
     g.bench_function("bound/sqrt+div", |b| b.iter(|| black_box(sqrt_div(&xs))));
+    // The same with 256-bit vectors, the width the field kernel runs at when the CPU
+    // has AVX2.
+    #[cfg(target_arch = "x86_64")]
+    if std::is_x86_feature_detected!("avx2") {
+        g.bench_function("bound/sqrt+div-avx2", |b| {
+            b.iter(|| black_box(sqrt_div_avx2(&xs)))
+        });
+    }
     g.finish();
 }
 
@@ -78,6 +88,30 @@ fn sqrt_div(xs: &[f64]) -> f64 {
             (acc[0] + acc[1] + acc[2] + acc[3]).reduce_add()
         })
         .sum()
+}
+
+/// [`sqrt_div`] in 256-bit registers (AVX2), in parallel chunks.
+#[cfg(target_arch = "x86_64")]
+fn sqrt_div_avx2(xs: &[f64]) -> f64 {
+    use rayon::prelude::*;
+    #[target_feature(enable = "avx2")]
+    unsafe fn chunk(c: &[f64]) -> f64 {
+        use std::arch::x86_64::*;
+        let one = _mm256_set1_pd(1.0);
+        let mut acc = [_mm256_setzero_pd(); 4];
+        for q in c.chunks_exact(16) {
+            for (j, a) in acc.iter_mut().enumerate() {
+                let x = _mm256_setr_pd(q[4 * j], q[4 * j + 1], q[4 * j + 2], q[4 * j + 3]);
+                *a = _mm256_add_pd(*a, _mm256_div_pd(_mm256_add_pd(x, one), _mm256_sqrt_pd(x)));
+            }
+        }
+        let s = _mm256_add_pd(_mm256_add_pd(acc[0], acc[1]), _mm256_add_pd(acc[2], acc[3]));
+        // SAFETY: same size, any bits are valid f64s.
+        let v = unsafe { std::mem::transmute::<__m256d, [f64; 4]>(s) };
+        v.iter().sum()
+    }
+    // SAFETY: called only after AVX2 was detected.
+    xs.par_chunks(1 << 14).map(|c| unsafe { chunk(c) }).sum()
 }
 
 fn sweep_scene() -> Scene {

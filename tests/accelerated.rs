@@ -423,3 +423,32 @@ fn command_line_probe_and_sweep_agree_with_exact_within_the_tolerance() {
         assert!((x - y).abs() <= 1e-6 * y.abs(), "{x} vs {y}");
     }
 }
+
+/// The full benchmark case (`benches/maps.rs`, `winding-board`): every point of the
+/// 128³ grid, 200 mm wide around a 21 120-segment helix, accelerated against direct.
+/// About three minutes on two cores: `cargo test --release --test accelerated -- --ignored`.
+#[test]
+#[ignore = "about three minutes: the full 128³ grid against direct sums"]
+fn full_128_cube_board_map_is_within_the_tolerance_of_direct_at_every_point() {
+    let text = "[solver]\ntolerance = 1e-6\n[[source]]\nid = \"coil\"\nkind = \"helix\"\n\
+                radius = \"10 mm\"\nlength = \"20 mm\"\nturns = 40\nleads = \"none\"\n\
+                wire_radius = \"0.2 mm\"\ncurrent = { frequency = \"100 kHz\", peak = \"1 A\" }\n\
+                [[map]]\nid = \"m\"\nkind = \"box\"\nmin = [-0.1, -0.1, -0.1]\n\
+                max = [0.1, 0.1, 0.1]\ncells = [127, 127, 127]\n";
+    let scene = Scene::parse("board.toml", text).unwrap();
+    let points = scene.maps[0].all_points();
+    let src = &scene.sources[0].conductors;
+    let fast = Accelerated::for_points(src, &points, scene.tolerance, false);
+    let got = strayflux::field::b_at_points(&fast, &points);
+    let want = strayflux::field::b_at_points(src, &points);
+    let mut worst: f64 = 0.0;
+    for (k, (g, w)) in got.iter().zip(&want).enumerate() {
+        let rel = (g - w).norm() / w.norm();
+        assert!(rel <= scene.tolerance, "point {k}: {rel:e}");
+        worst = worst.max(rel);
+    }
+    println!(
+        "worst relative difference over {} points: {worst:.2e}",
+        points.len()
+    );
+}

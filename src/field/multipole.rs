@@ -81,6 +81,30 @@ fn index_of(k: [usize; 3]) -> usize {
 }
 
 impl Indices {
+    /// Fills the Taylor coefficients of degree `deg` in `a` from the two degrees
+    /// below (the recurrence of the module's doc comment), for the point at `dv` (m)
+    /// from the centre, `r2` = |dv|². Missing neighbours count as zero.
+    #[inline(always)]
+    fn recur(&self, a: &mut [f64], deg: usize, dv: &[f64; 3], r2: f64) {
+        let nf = deg as f64;
+        let (c1, c2) = ((2.0 * nf - 1.0) / (nf * r2), (nf - 1.0) / (nf * r2));
+        for e in self.start[deg]..self.start[deg + 1] {
+            let m1 = &self.minus1[e];
+            let m2 = &self.minus2[e];
+            let mut s1 = 0.0;
+            let mut s2 = 0.0;
+            for i in 0..3 {
+                if m1[i] != usize::MAX {
+                    s1 += dv[i] * a[m1[i]];
+                }
+                if m2[i] != usize::MAX {
+                    s2 += a[m2[i]];
+                }
+            }
+            a[e] = c1 * s1 - c2 * s2;
+        }
+    }
+
     fn new(max_degree: usize) -> Self {
         let mut k = Vec::new();
         let mut start = Vec::new();
@@ -435,24 +459,9 @@ impl FarField {
             if idx.start[deg + 1] > self.budget() {
                 return None;
             }
-            let nf = deg as f64;
-            let (c1, c2) = ((2.0 * nf - 1.0) / (nf * r2), (nf - 1.0) / (nf * r2));
-            for e in idx.start[deg]..idx.start[deg + 1] {
-                let m1 = &idx.minus1[e];
-                let m2 = &idx.minus2[e];
-                let mut s1 = 0.0;
-                let mut s2 = 0.0;
-                for i in 0..3 {
-                    if m1[i] != usize::MAX {
-                        s1 += dv[i] * a[m1[i]];
-                    }
-                    if m2[i] != usize::MAX {
-                        s2 += a[m2[i]];
-                    }
-                }
-                let ae = c1 * s1 - c2 * s2;
-                a[e] = ae;
-                let ne = &self.n[e];
+            idx.recur(a, deg, &dv, r2);
+            let range = idx.start[deg]..idx.start[deg + 1];
+            for (&ae, ne) in a[range.clone()].iter().zip(&self.n[range]) {
                 for j in 0..3 {
                     let term = ae * ne[j];
                     sum[j] += term;
@@ -501,24 +510,9 @@ impl FarField {
             if idx.start[deg + 1] > self.budget() {
                 return None;
             }
-            let nf = deg as f64;
-            let (c1, c2) = ((2.0 * nf - 1.0) / (nf * r2), (nf - 1.0) / (nf * r2));
-            for e in idx.start[deg]..idx.start[deg + 1] {
-                let m1 = &idx.minus1[e];
-                let m2 = &idx.minus2[e];
-                let mut s1 = 0.0;
-                let mut s2 = 0.0;
-                for i in 0..3 {
-                    if m1[i] != usize::MAX {
-                        s1 += dv[i] * a[m1[i]];
-                    }
-                    if m2[i] != usize::MAX {
-                        s2 += a[m2[i]];
-                    }
-                }
-                let ae = c1 * s1 - c2 * s2;
-                a[e] = ae;
-                let me = &self.m[e];
+            idx.recur(a, deg, &dv, r2);
+            let range = idx.start[deg]..idx.start[deg + 1];
+            for (&ae, me) in a[range.clone()].iter().zip(&self.m[range]) {
                 for j in 0..3 {
                     let term = ae * me[j];
                     sum[j] += term;
@@ -570,25 +564,10 @@ impl FarField {
         out[0] = Vec3::new(self.m[0][0], self.m[0][1], self.m[0][2]) * (a[0] * MU0_OVER_4PI);
         let mut abs = out[0].abs().sum();
         for (deg, slot) in out.iter_mut().enumerate().take(q + 1).skip(1) {
-            let nf = deg as f64;
-            let (c1, c2) = ((2.0 * nf - 1.0) / (nf * r2), (nf - 1.0) / (nf * r2));
+            idx.recur(a, deg, &dv, r2);
             let mut sum = [0.0f64; 3];
-            for e in idx.start[deg]..idx.start[deg + 1] {
-                let m1 = &idx.minus1[e];
-                let m2 = &idx.minus2[e];
-                let mut s1 = 0.0;
-                let mut s2 = 0.0;
-                for i in 0..3 {
-                    if m1[i] != usize::MAX {
-                        s1 += dv[i] * a[m1[i]];
-                    }
-                    if m2[i] != usize::MAX {
-                        s2 += a[m2[i]];
-                    }
-                }
-                let ae = c1 * s1 - c2 * s2;
-                a[e] = ae;
-                let me = &self.m[e];
+            let range = idx.start[deg]..idx.start[deg + 1];
+            for (&ae, me) in a[range.clone()].iter().zip(&self.m[range]) {
                 for j in 0..3 {
                     let term = ae * me[j];
                     sum[j] += term;

@@ -110,16 +110,17 @@ fn far_points(
 /// Flux per ampere (Wb/A) through the closed chain `edges` from a source's multipole
 /// expansion `far`, or `None` when the victim is not far enough for it to be proven
 /// within `tolerance` and cheaper than the direct sum. Every edge must be far enough
-/// from the conductors (inside `sphere`) for [`far_edge`]'s one-pass rule. The error of
-/// the series at degree q is bounded at each node by [`FarField::a_bound`]; summed over
-/// the rule's |weight × tangent|, that bounds the flux error, which must come under a
-/// tenth of the tolerance times the flux found (with the series' rounding noise). The
-/// degree is chosen from a first estimate through degree 2 (dipole and quadrupole).
+/// from the conductors (inside `sphere`) for the one-pass far-edge rule of
+/// [`flux_per_amp`]. The error of the series at degree q is bounded at each node by
+/// [`crate::field::FarField::a_bound`]; summed over the rule's |weight × tangent|, that
+/// bounds the flux error, which must come under a tenth of the tolerance times the flux
+/// found (with the series' rounding noise). The degree is chosen from a first estimate
+/// through degree 2 (dipole and quadrupole).
 ///
 /// A flat victim (`face`: the centre (m) and radius (m) of a disc holding it, and its
-/// area, m²) also has the bound area × [`FarField::b_bound`] at the disc's nearest
-/// point, the flux of the series' error field through the face; the smaller bound is
-/// used.
+/// area, m²) also has the bound area × [`crate::field::FarField::b_bound`] at the
+/// disc's nearest point, the flux of the series' error field through the face; the
+/// smaller bound is used.
 pub fn flux_from_far(
     far: &crate::field::FarField,
     sphere: Option<(crate::field::Vec3, f64)>,

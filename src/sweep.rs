@@ -223,9 +223,10 @@ pub fn run(
     progress: &(dyn Fn() + Sync),
 ) -> Result<SweepResult, String> {
     let victim = &scene.victims[spec.victim];
-    // The victim is placed many times: far steps then take the flux from each source's
-    // multipole expansion where that is proven within the tolerance (not with --exact).
-    if !scene.exact {
+    // A distance or angle sweep places the victim many times: far steps then take the
+    // flux from each source's multipole expansion where that is proven within the
+    // tolerance (not with --exact). A frequency sweep computes its fluxes once.
+    if !scene.exact && !matches!(spec.vary, Vary::Frequency) {
         for s in &scene.sources {
             let _ = s.far_field();
         }

@@ -674,9 +674,10 @@ impl<'a> Accelerated<'a> {
         }
     }
 
-    /// Like [`Accelerated::new`], but without an expansion when fewer than one in
-    /// sixteen of `points` (m) lies outside 1.5 times the wires' bounding sphere, where
-    /// the series may be used: then building the moments would not pay.
+    /// Like [`Accelerated::new`], but without an expansion when fewer than 128 of
+    /// `points` (m), or fewer than one in sixteen, lie outside 1.5 times the wires'
+    /// bounding sphere, where the series may be used: then building the moments would
+    /// not pay.
     pub fn for_points(
         source: &'a Conductors,
         points: &[Vec3],
@@ -686,8 +687,10 @@ impl<'a> Accelerated<'a> {
         let use_far = !exact
             && source.segment_count() >= MIN_SEGMENTS
             && source.bounding_sphere().is_some_and(|(c, r)| {
+                // Building the moments costs about as much as summing a few hundred
+                // points directly.
                 let far = points.iter().filter(|p| (*p - c).norm() > 1.5 * r).count();
-                far * 16 >= points.len() && far > 0
+                far * 16 >= points.len() && far >= 128
             });
         // Many points pay for the dearer moments that reach closer to the source.
         let order = if points.len() >= 100_000 {

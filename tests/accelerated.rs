@@ -452,3 +452,25 @@ fn full_128_cube_board_map_is_within_the_tolerance_of_direct_at_every_point() {
         points.len()
     );
 }
+
+#[test]
+fn a_points_value_does_not_depend_on_the_other_points_asked_for() {
+    // A probe at one map grid point must give the map's value to the last digit:
+    // the series is used or not by the point alone.
+    let mut rng = Lcg(0x5eed_0008);
+    let src = random_source(&mut rng);
+    let (c, r) = src.bounding_sphere().unwrap();
+    let many: Vec<Vec3> = (0..300)
+        .map(|_| c + rng.unit() * r * rng.range(0.5, 30.0))
+        .collect();
+    let all =
+        strayflux::field::b_at_points(&Accelerated::for_points(&src, &many, 1e-6, false), &many);
+    for (k, p) in many.iter().enumerate().step_by(7) {
+        let one = [*p];
+        let alone =
+            strayflux::field::b_at_points(&Accelerated::for_points(&src, &one, 1e-6, false), &one);
+        for i in 0..3 {
+            assert_eq!(alone[0][i].to_bits(), all[k][i].to_bits(), "point {k}");
+        }
+    }
+}

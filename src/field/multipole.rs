@@ -674,26 +674,26 @@ impl<'a> Accelerated<'a> {
         }
     }
 
-    /// Like [`Accelerated::new`], but without an expansion when fewer than 128 of
-    /// `points` (m), or fewer than one in sixteen, lie outside 1.5 times the wires'
-    /// bounding sphere, where the series may be used: then building the moments would
-    /// not pay.
+    /// Like [`Accelerated::new`], but without an expansion when no point of `points`
+    /// (m) lies outside 1.5 times the wires' bounding sphere, where the series may be
+    /// used (then no point would use it). Whether a point takes the series depends only
+    /// on the source, the point and the tolerance, never on the other points asked for:
+    /// a `probe` at a map's grid point gives the map's value to the last digit. The
+    /// degree kept depends on the source alone: 24 for 4096 segments or more, where the
+    /// direct sum is dear enough to pay for the higher moments, 16 otherwise.
     pub fn for_points(
         source: &'a Conductors,
         points: &[Vec3],
         tolerance: f64,
         exact: bool,
     ) -> Self {
+        let segments = source.segment_count();
         let use_far = !exact
-            && source.segment_count() >= MIN_SEGMENTS
-            && source.bounding_sphere().is_some_and(|(c, r)| {
-                // Building the moments costs about as much as summing a few hundred
-                // points directly.
-                let far = points.iter().filter(|p| (*p - c).norm() > 1.5 * r).count();
-                far * 16 >= points.len() && far >= 128
-            });
-        // Many points pay for the dearer moments that reach closer to the source.
-        let order = if points.len() >= 100_000 {
+            && segments >= MIN_SEGMENTS
+            && source
+                .bounding_sphere()
+                .is_some_and(|(c, r)| points.iter().any(|p| (p - c).norm() > 1.5 * r));
+        let order = if segments >= 4096 {
             MAX_ORDER
         } else {
             SWEEP_ORDER

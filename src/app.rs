@@ -475,14 +475,7 @@ fn chunked_fields(scene: &Scene, points: &[Vec3], tick: &(dyn Fn(usize) + Sync))
     let fast: Vec<crate::field::Accelerated> = scene
         .sources
         .iter()
-        .map(|s| {
-            crate::field::Accelerated::for_points(
-                &s.conductors,
-                points,
-                scene.tolerance,
-                scene.exact,
-            )
-        })
+        .map(|s| crate::fieldmap::fast_source(scene, s, points))
         .collect();
     for chunk in points.chunks(CHUNK) {
         for (o, s) in out.iter_mut().zip(&fast) {

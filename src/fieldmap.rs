@@ -6,12 +6,22 @@ use crate::scene::map::{MapLines, MapSpec};
 use crate::spectrum::same_frequency;
 use num_complex::Complex64;
 
-/// B per ampere (T/A) of every source at every grid point: `[source][point]`.
+/// `source`'s conductors as evaluated at `points` (m) in `scene`: with their far-field
+/// expansion where it holds, unless the scene asks for `exact` sums.
+pub fn fast_source<'a>(
+    scene: &Scene,
+    source: &'a crate::scene::Source,
+    points: &[Vec3],
+) -> crate::field::Accelerated<'a> {
+    crate::field::Accelerated::for_points(&source.conductors, points, scene.tolerance, scene.exact)
+}
+
+/// B per ampere (T/A) of every source at every point (m): `[source][point]`.
 pub fn per_amp_fields(scene: &Scene, points: &[Vec3]) -> Vec<Vec<Vec3>> {
     scene
         .sources
         .iter()
-        .map(|s| b_at_points(&s.conductors, points))
+        .map(|s| b_at_points(&fast_source(scene, s, points), points))
         .collect()
 }
 

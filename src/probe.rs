@@ -1,7 +1,7 @@
 //! B phasors of every spectral line at chosen points.
 
 use crate::Scene;
-use crate::field::{Vec3, b_at_points};
+use crate::field::Vec3;
 use crate::spectrum::same_frequency;
 use num_complex::Complex64;
 
@@ -70,19 +70,7 @@ fn frequencies(scene: &Scene) -> Vec<f64> {
 }
 
 fn free_space(scene: &Scene, points: &[Vec3]) -> Vec<ProbePoint> {
-    let per_source: Vec<Vec<Vec3>> = scene
-        .sources
-        .iter()
-        .map(|s| {
-            let fast = crate::field::Accelerated::for_points(
-                &s.conductors,
-                points,
-                scene.tolerance,
-                scene.exact,
-            );
-            b_at_points(&fast, points)
-        })
-        .collect();
+    let per_source = crate::fieldmap::per_amp_fields(scene, points);
     let freqs = frequencies(scene);
     points
         .iter()

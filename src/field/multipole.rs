@@ -484,51 +484,6 @@ impl FarField {
         }
         None
     }
-
-    /// A (T·m/A) at `x` (m) from the series, if its error bound and rounding noise
-    /// are below `absolute` (T·m/A) within the order kept and the budget; `None`
-    /// otherwise.
-    pub fn a(&self, x: &Vec3, absolute: f64) -> Option<Expanded> {
-        let d = x - self.centre;
-        let r2 = d.norm_squared();
-        let r = r2.sqrt();
-        if r.is_nan() || r <= self.radius * 1.5 {
-            return None;
-        }
-        let idx = &self.idx;
-        let mut buf = Coefficients::take();
-        let a = buf.get();
-        a[0] = 1.0 / r;
-        let dv = [d.x, d.y, d.z];
-        let mut sum = [
-            self.m[0][0] * a[0],
-            self.m[0][1] * a[0],
-            self.m[0][2] * a[0],
-        ];
-        let mut abs = sum.iter().map(|s| s.abs()).sum::<f64>();
-        for deg in 1..=self.order {
-            if idx.start[deg + 1] > self.budget() {
-                return None;
-            }
-            idx.recur(a, deg, &dv, r2);
-            let range = idx.start[deg]..idx.start[deg + 1];
-            for (&ae, me) in a[range.clone()].iter().zip(&self.m[range]) {
-                for j in 0..3 {
-                    let term = ae * me[j];
-                    sum[j] += term;
-                    abs += term.abs();
-                }
-            }
-            let noise = 256.0 * f64::EPSILON * abs * MU0_OVER_4PI;
-            if self.a_bound(deg, r) + noise <= absolute {
-                return Some(Expanded {
-                    value: Vec3::new(sum[0], sum[1], sum[2]) * MU0_OVER_4PI,
-                    order: deg,
-                });
-            }
-        }
-        None
-    }
 }
 
 impl FarField {
@@ -715,15 +670,19 @@ impl<'a> Accelerated<'a> {
         self.far.as_ref()
     }
 
+    /// The series value at `r` plus the dipoles' fields (always direct), if the series
+    /// holds there.
     fn far_b(&self, r: &Vec3) -> Option<Vec3> {
-        let far = self.far.as_ref()?;
-        let b = far.b(r, self.tolerance)?.value;
-        Some(
-            self.source
-                .dipoles
-                .iter()
-                .fold(b, |acc, d| acc + d.b_per_amp(r)),
-        )
+        let b = self.far.as_ref()?.b(r, self.tolerance)?.value;
+        Some(self.with_dipoles(b, r))
+    }
+
+    /// `b` (the wires' field at `r`, T/A) plus the source's dipoles.
+    fn with_dipoles(&self, b: Vec3, r: &Vec3) -> Vec3 {
+        self.source
+            .dipoles
+            .iter()
+            .fold(b, |acc, d| acc + d.b_per_amp(r))
     }
 }
 
@@ -741,23 +700,8 @@ impl FieldSource for Accelerated<'_> {
     }
 
     fn b_block(&self, pts: &[Vec3; 4]) -> [Vec3; 4] {
-        if self.far.is_none() {
-            return self.source.b_block(pts);
-        }
-        let series = self.far.as_ref().map(|f| f.b4(pts, self.tolerance));
-        let far: [Option<Vec3>; 4] = std::array::from_fn(|i| {
-            let b = series.as_ref()?[i]?.value;
-            Some(
-                self.source
-                    .dipoles
-                    .iter()
-                    .fold(b, |acc, d| acc + d.b_per_amp(&pts[i])),
-            )
-        });
-        if far.iter().all(Option::is_none) {
-            return self.source.b_block(pts);
-        }
-        std::array::from_fn(|i| far[i].unwrap_or_else(|| self.source.b_per_amp(&pts[i])))
+        let b = self.b_many(pts);
+        [b[0], b[1], b[2], b[3]]
     }
 
     fn b_many(&self, pts: &[Vec3]) -> Vec<Vec3> {
@@ -773,12 +717,7 @@ impl FieldSource for Accelerated<'_> {
             let series = far.b4(&block, self.tolerance);
             for (i, p) in c.iter().enumerate() {
                 match series[i] {
-                    Some(e) => out.push(
-                        self.source
-                            .dipoles
-                            .iter()
-                            .fold(e.value, |acc, d| acc + d.b_per_amp(p)),
-                    ),
+                    Some(e) => out.push(self.with_dipoles(e.value, p)),
                     None => {
                         direct.push(out.len());
                         out.push(*p);

@@ -226,13 +226,8 @@ pub fn shielded_lines(
             .collect::<Result<_, String>>()?,
     };
     for s in &scene.sources {
-        let fast = crate::field::Accelerated::for_points(
-            &s.conductors,
-            points,
-            scene.tolerance,
-            scene.exact,
-        );
-        let free = crate::field::b_at_points(&fast, points);
+        let free =
+            crate::field::b_at_points(&crate::fieldmap::fast_source(scene, s, points), points);
         let src_points = crate::scene::source_points(s);
         let (s_side, scattered) = match &scene.barrier {
             None => {

@@ -24,12 +24,21 @@ pub fn flux_per_amp<S: FieldSource + ?Sized>(
     edges: &[Edge],
     tolerance: f64,
 ) -> Integral {
+    flux_per_amp_within(source, source.bounding_sphere(), edges, tolerance)
+}
+
+/// As [`flux_per_amp`], with the source's bounding sphere (centre m, radius m) given.
+pub fn flux_per_amp_within<S: FieldSource + ?Sized>(
+    source: &S,
+    sphere: Option<(crate::field::Vec3, f64)>,
+    edges: &[Edge],
+    tolerance: f64,
+) -> Integral {
     let mut total = Integral {
         value: 0.0,
         magnitude: 0.0,
         converged: true,
     };
-    let sphere = source.bounding_sphere();
     for edge in edges {
         let f = |t: f64| {
             let tangent = edge.tangent(t);
@@ -307,17 +316,20 @@ impl PairModel {
     /// Builds the model of `source` coupling into `victim` in `scene`.
     pub fn new(scene: &Scene, source: &Source, victim: &Victim) -> Result<PairModel, String> {
         let far = source.far_field_if_built().filter(|_| !scene.exact);
+        let sphere = source.bounding_sphere();
         let phi = far
             .and_then(|f| {
                 flux_from_far(
                     f,
-                    source.conductors.bounding_sphere(),
+                    sphere,
                     &victim.edges,
                     victim.flat_face(),
                     scene.tolerance,
                 )
             })
-            .unwrap_or_else(|| flux_per_amp(&source.conductors, &victim.edges, scene.tolerance));
+            .unwrap_or_else(|| {
+                flux_per_amp_within(&source.conductors, sphere, &victim.edges, scene.tolerance)
+            });
         let src_points = crate::scene::source_points(source);
         let scattered = match &scene.barrier {
             None => None,

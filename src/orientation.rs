@@ -67,7 +67,7 @@ pub fn small_loop_matrix(
 
 /// Searches the loop normal that maximises (`worst`) or minimises the total EMF given
 /// by `total(victim)`, starting from the small-loop eigenvectors of `q`.
-pub fn search<F: Fn(&Victim) -> f64>(
+pub fn search<F: Fn(&Victim) -> f64 + Sync>(
     victim: &Victim,
     q: &Matrix3<f64>,
     worst: bool,
@@ -92,8 +92,11 @@ pub fn search<F: Fn(&Victim) -> f64>(
     // Refine from the small-loop answer (both signs); a large loop in a non-uniform
     // field may prefer another eigenvector, so refine from any that does better as it
     // stands.
-    let mut best = refine(victim, starts[0], worst, &total);
-    let other = refine(victim, starts[1], worst, &total);
+    // The two refinements are independent: they run side by side.
+    let (mut best, other) = rayon::join(
+        || refine(victim, starts[0], worst, &total),
+        || refine(victim, starts[1], worst, &total),
+    );
     if better(other.total_rms, best.total_rms) {
         best = other;
     }

@@ -225,8 +225,9 @@ pub fn run(
     let victim = &scene.victims[spec.victim];
     // A distance or angle sweep places the victim many times: far steps then take the
     // flux from each source's multipole expansion where that is proven within the
-    // tolerance (not with --exact). A frequency sweep computes its fluxes once.
-    if !scene.exact && !matches!(spec.vary, Vary::Frequency) {
+    // tolerance (not with --exact), if the sweep has enough far work to repay building
+    // it. A frequency sweep computes its fluxes once.
+    if !scene.exact && !matches!(spec.vary, Vary::Frequency) && moments_pay(spec, victim) {
         for s in &scene.sources {
             let _ = s.far_field();
         }
@@ -273,6 +274,20 @@ pub fn run(
         placed_total,
         compare,
     })
+}
+
+/// Building a source's moments (degree 16) costs about as much as this many direct
+/// evaluations of its potential at one point, whatever its number of segments (both
+/// scale with it): 30 ms of one core for the 2000-segment polygon of the sweep
+/// benchmark, against 7 µs per point.
+const MOMENT_BUILD_POINTS: usize = 4300;
+
+/// Whether a sweep of `victim` could save more than twice the moments' cost: a far
+/// placement takes about three direct evaluations per first-pass quadrature panel of
+/// the victim's edges, which the series replaces.
+fn moments_pay(spec: &SweepSpec, victim: &Victim) -> bool {
+    let panels: usize = victim.edges.iter().map(|e| e.initial_panels()).sum();
+    spec.steps.saturating_mul(panels).saturating_mul(3) >= 2 * MOMENT_BUILD_POINTS
 }
 
 /// Every step of `spec` in `scene`, in parallel.

@@ -204,7 +204,7 @@ unsafe fn log_sum_avx2<F: Fn(usize, f64, f64) -> f64>(
 #[inline(always)]
 fn distances_into(soa: &Soa, r: &Vec3, dist: &mut Vec<f64>) {
     let n = soa.x.len();
-    dist.clear();
+    // Every entry is overwritten: only a change of length touches the allocation.
     dist.resize(n, 0.0);
     for (((d, x), y), z) in dist.iter_mut().zip(&soa.x).zip(&soa.y).zip(&soa.z) {
         let (dx, dy, dz) = (r.x - x, r.y - y, r.z - z);
@@ -360,7 +360,6 @@ fn lane_log<F: Fn(usize, f64, f64) -> f64>(
 
 fn vertex_distances(soa: &Soa, r: &Vec3, out: &mut Vec<f64>) {
     let n = soa.x.len();
-    out.clear();
     out.resize(n, 0.0);
     let (rx, ry, rz) = (f64x4::splat(r.x), f64x4::splat(r.y), f64x4::splat(r.z));
     let groups = n / 4;

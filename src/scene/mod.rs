@@ -78,6 +78,9 @@ pub struct Source {
     /// [`Source::far_field`] and shared by clones (the conductors never change after
     /// loading).
     pub far: std::sync::Arc<std::sync::OnceLock<Option<crate::field::FarField>>>,
+    /// The conductors' bounding sphere (centre m, radius m), computed on first request
+    /// by [`Source::bounding_sphere`] and shared by clones.
+    pub sphere: std::sync::Arc<std::sync::OnceLock<Option<(Vec3, f64)>>>,
 }
 
 impl Source {
@@ -87,6 +90,16 @@ impl Source {
         self.far
             .get_or_init(|| crate::field::FarField::new(&self.conductors))
             .as_ref()
+    }
+
+    /// The conductors' bounding sphere (centre m, radius m; see
+    /// [`crate::field::FieldSource::bounding_sphere`]), computed once: a sweep asks for
+    /// it at every step.
+    pub fn bounding_sphere(&self) -> Option<(Vec3, f64)> {
+        use crate::field::FieldSource;
+        *self
+            .sphere
+            .get_or_init(|| self.conductors.bounding_sphere())
     }
 
     /// The expansion if it was already built (by a sweep), without building it.

@@ -192,6 +192,7 @@ pub(crate) fn parse(
         lines,
         calibration,
         far: Default::default(),
+        sphere: Default::default(),
     })
 }
 

@@ -279,15 +279,16 @@ pub fn run(
 /// Building a source's moments (degree 16) costs about as much as this many direct
 /// evaluations of its potential at one point, whatever its number of segments (both
 /// scale with it): 30 ms of one core for the 2000-segment polygon of the sweep
-/// benchmark, against 7 µs per point.
-const MOMENT_BUILD_POINTS: usize = 4300;
+/// benchmark, against 6 µs per point.
+const MOMENT_BUILD_POINTS: usize = 5000;
 
-/// Whether a sweep of `victim` could save more than twice the moments' cost: a far
-/// placement takes about three direct evaluations per first-pass quadrature panel of
-/// the victim's edges, which the series replaces.
+/// Whether a sweep of `victim` could save more than twice the moments' cost. Measured
+/// on the sweep benchmark, a far placement saves about one direct evaluation per
+/// first-pass quadrature panel of the victim's edges (the series is cheaper per node,
+/// not free); at most every step is far.
 fn moments_pay(spec: &SweepSpec, victim: &Victim) -> bool {
     let panels: usize = victim.edges.iter().map(|e| e.initial_panels()).sum();
-    spec.steps.saturating_mul(panels).saturating_mul(3) >= 2 * MOMENT_BUILD_POINTS
+    spec.steps.saturating_mul(panels) >= 2 * MOMENT_BUILD_POINTS
 }
 
 /// Every step of `spec` in `scene`, in parallel.

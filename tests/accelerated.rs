@@ -366,7 +366,7 @@ fn command_line_probe_and_sweep_agree_with_exact_within_the_tolerance() {
          [[victim]]\nid = \"v\"\nkind = \"loop\"\nradius = \"3 mm\"\n\
          position = [\"30 mm\", \"0 mm\", \"0 mm\"]\n\
          [[sweep]]\nid = \"s\"\nvictim = \"v\"\nvary = \"distance\"\nalong = [1, 0, 0]\n\
-         from = \"1 mm\"\nto = \"300 mm\"\nsteps = 400\n",
+         from = \"1 mm\"\nto = \"300 mm\"\nsteps = 1250\n",
     )
     .unwrap();
     let mut rng = Lcg(0x5eed_0006);
@@ -418,11 +418,12 @@ fn command_line_probe_and_sweep_agree_with_exact_within_the_tolerance() {
             .collect()
     };
     let (a, b) = (sweep(&[]), sweep(&["--exact"]));
-    assert_eq!(a.len(), 400);
+    assert_eq!(a.len(), 1250);
     for (x, y) in a.iter().zip(&b) {
         assert!((x - y).abs() <= 1e-6 * y.abs(), "{x} vs {y}");
     }
-    // 400 placements of a one-arc loop are enough far work to build the moments, and
+    // 1250 placements of a one-arc loop (8 panels) are enough far work to build the
+    // moments, and
     // the far steps did come from the series.
     let series_steps = a.iter().zip(&b).filter(|(x, y)| x != y).count();
     assert!(

@@ -278,9 +278,9 @@ pub fn run(
 
 /// Building a source's moments (degree 16) costs about as much as this many direct
 /// evaluations of its potential at one point, whatever its number of segments (both
-/// scale with it): 30 ms of one core for the 2000-segment polygon of the sweep
+/// scale with it): 17 ms of one core for the 2000-segment polygon of the sweep
 /// benchmark, against 6 µs per point.
-const MOMENT_BUILD_POINTS: usize = 5000;
+const MOMENT_BUILD_POINTS: usize = 3000;
 
 /// Whether a sweep of `victim` could save more than twice the moments' cost. Measured
 /// on the sweep benchmark, a far placement saves about one direct evaluation per

@@ -34,26 +34,31 @@ pub fn flux_per_amp_within<S: FieldSource + ?Sized>(
     edges: &[Edge],
     tolerance: f64,
 ) -> Integral {
+    // Edges in parallel, summed in edge order: the same result for any thread count.
+    use rayon::prelude::*;
+    let parts: Vec<Integral> = edges
+        .par_iter()
+        .map(|edge| {
+            let f = |t: f64| {
+                let tangent = edge.tangent(t);
+                let (a, gross) = source.a_and_gross_per_amp(&edge.point(t));
+                (a.dot(&tangent), gross * tangent.norm())
+            };
+            let panels = edge.initial_panels();
+            if let Some(part) = far_edge(&f, edge, panels, sphere, tolerance) {
+                return part;
+            }
+            // A tenth of the tolerance per edge: the halving test is conservative for
+            // smooth integrands, and edges add.
+            integrate_unit(&f, panels, tolerance * 0.1)
+        })
+        .collect();
     let mut total = Integral {
         value: 0.0,
         magnitude: 0.0,
         converged: true,
     };
-    for edge in edges {
-        let f = |t: f64| {
-            let tangent = edge.tangent(t);
-            let (a, gross) = source.a_and_gross_per_amp(&edge.point(t));
-            (a.dot(&tangent), gross * tangent.norm())
-        };
-        let panels = edge.initial_panels();
-        if let Some(part) = far_edge(&f, edge, panels, sphere, tolerance) {
-            total.value += part.value;
-            total.magnitude += part.magnitude;
-            continue;
-        }
-        // A tenth of the tolerance per edge: the halving test is conservative for smooth
-        // integrands, and edges add.
-        let part = integrate_unit(&f, panels, tolerance * 0.1);
+    for part in parts {
         total.value += part.value;
         total.magnitude += part.magnitude;
         total.converged &= part.converged;

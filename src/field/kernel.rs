@@ -1,12 +1,15 @@
-//! The vector-potential sum over a polyline's segments, four segments per SIMD group.
+//! The segment sums over a polyline: the vector potential, four segments per SIMD
+//! group, and the field, four points per group.
 //!
 //! Structure of arrays: vertex coordinates and each segment's unit direction and length
 //! sit in separate arrays. For a field point the distance to every vertex is computed
 //! once (shared by the two segments meeting there), then each group of four segments
-//! takes ln((Ri+Rf+L)/(Ri+Rf−L)) in one vector operation. Groups with a segment close
-//! enough for cancellation or the wire radius to matter fall back to the careful scalar
+//! takes ln((Ri+Rf+L)/(Ri+Rf−L)) as a short series in t = L/(Ri+Rf), with one vector
+//! division and no logarithm. Groups with a segment close enough for cancellation or
+//! the wire radius to matter fall back to the library logarithm or the careful scalar
 //! form lane by lane. The order of additions is fixed, so results do not depend on the
-//! thread count.
+//! thread count, and the 256-bit (AVX2) and portable paths do the same operations in
+//! the same order, so results do not depend on the CPU either.
 
 use super::Vec3;
 use std::cell::RefCell;

@@ -317,21 +317,24 @@ fn refine<F: Fn(f64) -> (f64, f64)>(
 mod tests {
     use super::*;
 
+    /// |Σ w x^deg − ∫₋₁¹ x^deg dx| for the rule (`x`, `w`).
+    fn monomial_error(x: &[f64], w: &[f64], deg: usize) -> f64 {
+        let got: f64 = x.iter().zip(w).map(|(x, w)| w * x.powi(deg as i32)).sum();
+        let exact = if deg % 2 == 1 {
+            0.0
+        } else {
+            2.0 / (deg as f64 + 1.0)
+        };
+        (got - exact).abs()
+    }
+
     #[test]
     fn rule_is_exact_for_polynomials_up_to_degree_2n_minus_1() {
         // Defining property of Gauss–Legendre quadrature (Abramowitz & Stegun 25.4.29).
         let (x, w) = gauss_legendre(ORDER);
         for deg in 0..(2 * ORDER) {
-            let got: f64 = x.iter().zip(&w).map(|(x, w)| w * x.powi(deg as i32)).sum();
-            let exact = if deg % 2 == 1 {
-                0.0
-            } else {
-                2.0 / (deg as f64 + 1.0)
-            };
-            assert!(
-                (got - exact).abs() < 1e-14,
-                "degree {deg}: {got} vs {exact}"
-            );
+            let err = monomial_error(&x, &w, deg);
+            assert!(err < 1e-14, "degree {deg}: error {err:e}");
         }
     }
 
@@ -367,24 +370,13 @@ mod tests {
             }
             assert!(w.iter().all(|w| *w > 0.0), "n {n}: weights {w:?}");
             for deg in 0..=(3 * n + 1) {
-                let got: f64 = x.iter().zip(&w).map(|(x, w)| w * x.powi(deg as i32)).sum();
-                let exact = if deg % 2 == 1 {
-                    0.0
-                } else {
-                    2.0 / (deg as f64 + 1.0)
-                };
-                assert!(
-                    (got - exact).abs() < 2e-15,
-                    "n {n} degree {deg}: {got} vs {exact}"
-                );
+                let err = monomial_error(&x, &w, deg);
+                assert!(err < 2e-15, "n {n} degree {deg}: error {err:e}");
             }
-            // Degree 3n + 3 (even) is beyond the rule: it must then miss.
+            // The first even degree beyond the rule (3n + 2 for even n, 3n + 3 for odd):
+            // there it must miss.
             let deg = if n % 2 == 0 { 3 * n + 2 } else { 3 * n + 3 };
-            let got: f64 = x.iter().zip(&w).map(|(x, w)| w * x.powi(deg as i32)).sum();
-            assert!(
-                (got - 2.0 / (deg as f64 + 1.0)).abs() > 1e-12,
-                "n {n}: exact at {deg}"
-            );
+            assert!(monomial_error(&x, &w, deg) > 1e-12, "n {n}: exact at {deg}");
         }
     }
 

@@ -672,18 +672,9 @@ mod tests {
         if std::is_x86_feature_detected!("avx2") {
             // A wandering polyline and points near and far, some inside the wire and
             // on segment extensions (the careful lanes).
-            let mut seed = 12345u64;
-            let mut next = || {
-                seed = seed
-                    .wrapping_mul(6364136223846793005)
-                    .wrapping_add(1442695040888963407);
-                (seed >> 11) as f64 / (1u64 << 53) as f64 - 0.5
-            };
-            let mut v = vec![Vec3::zeros()];
-            for _ in 0..300 {
-                let last = *v.last().unwrap();
-                v.push(last + Vec3::new(next(), next(), next()) * 0.01);
-            }
+            let mut rng = crate::field::TestLcg(12345);
+            let v = rng.wandering(300);
+            let mut next = || rng.next();
             let soa = Soa::new(&v);
             let a2 = 1e-6;
             let careful = |k: usize, lane: usize| Vec3::new(k as f64, lane as f64, 1.0);
@@ -714,18 +705,9 @@ mod tests {
             // A wandering polyline of 301 segments (a tail after the four-wide groups)
             // and points near and far: on vertices and segments (careful lanes), close
             // (closed-form lanes, t > SERIES_T) and far (series lanes).
-            let mut seed = 777u64;
-            let mut next = || {
-                seed = seed
-                    .wrapping_mul(6364136223846793005)
-                    .wrapping_add(1442695040888963407);
-                (seed >> 11) as f64 / (1u64 << 53) as f64 - 0.5
-            };
-            let mut v = vec![Vec3::zeros()];
-            for _ in 0..301 {
-                let last = *v.last().unwrap();
-                v.push(last + Vec3::new(next(), next(), next()) * 0.01);
-            }
+            let mut rng = crate::field::TestLcg(777);
+            let v = rng.wandering(301);
+            let mut next = || rng.next();
             let soa = Soa::new(&v);
             let radius = 1e-3;
             let careful = |k: usize, ri: f64, rf: f64| (k as f64) + ri * 3.0 - rf;

@@ -200,3 +200,30 @@ pub fn b_at_points<S: FieldSource + ?Sized>(source: &S, points: &[Vec3]) -> Vec<
     let chunks: Vec<Vec<Vec3>> = points.par_chunks(64).map(|c| source.b_many(c)).collect();
     chunks.into_iter().flatten().collect()
 }
+
+/// A fixed-seed linear congruential generator for the unit tests of the field kernels
+/// (Knuth's MMIX constants), uniform on [−½, ½).
+#[cfg(test)]
+pub(crate) struct TestLcg(pub(crate) u64);
+
+#[cfg(test)]
+impl TestLcg {
+    /// The next value, uniform on [−½, ½).
+    pub(crate) fn next(&mut self) -> f64 {
+        self.0 = self
+            .0
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
+        (self.0 >> 11) as f64 / (1u64 << 53) as f64 - 0.5
+    }
+
+    /// A random walk of `steps` steps of up to 5 mm per axis from the origin.
+    pub(crate) fn wandering(&mut self, steps: usize) -> Vec<Vec3> {
+        let mut v = vec![Vec3::zeros()];
+        for _ in 0..steps {
+            let last = *v.last().expect("starts with the origin");
+            v.push(last + Vec3::new(self.next(), self.next(), self.next()) * 0.01);
+        }
+        v
+    }
+}

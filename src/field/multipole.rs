@@ -151,6 +151,16 @@ impl Indices {
     }
 }
 
+/// Gauss–Legendre nodes and weights on [0, 1] exact for polynomials of degree `order`
+/// along a segment: (t, weight).
+fn moment_nodes(order: usize) -> Vec<(f64, f64)> {
+    let (gx, gw) = crate::quadrature::gauss_legendre(order / 2 + 1);
+    gx.iter()
+        .zip(&gw)
+        .map(|(x, w)| ((x + 1.0) / 2.0, w / 2.0))
+        .collect()
+}
+
 /// Terms accumulated together by [`chunk_moments`]: their lane sums (3 × 32 bytes each)
 /// stay in the first-level cache.
 const TERM_BLOCK: usize = 128;
@@ -336,13 +346,7 @@ impl FarField {
             .fold(0.0, f64::max);
         let idx = Indices::new(order + 1);
         let terms = idx.start[order + 1];
-        // Gauss–Legendre on [0, 1], exact for degree `order` along a segment.
-        let (gx, gw) = crate::quadrature::gauss_legendre(order / 2 + 1);
-        let nodes: Vec<(f64, f64)> = gx
-            .iter()
-            .zip(&gw)
-            .map(|(x, w)| ((x + 1.0) / 2.0, w / 2.0))
-            .collect();
+        let nodes = moment_nodes(order);
         // Segments in fixed chunks, partial moments summed in chunk order: the result
         // does not depend on the thread count.
         let segs: Vec<(Vec3, Vec3, f64)> = wires
@@ -845,13 +849,8 @@ mod tests {
         #[cfg(target_arch = "x86_64")]
         if std::is_x86_feature_detected!("avx2") {
             // 37 wandering segments (a partial last group of four nodes) at degree 24.
-            let mut seed = 99u64;
-            let mut next = || {
-                seed = seed
-                    .wrapping_mul(6364136223846793005)
-                    .wrapping_add(1442695040888963407);
-                (seed >> 11) as f64 / (1u64 << 53) as f64 - 0.5
-            };
+            let mut rng = crate::field::TestLcg(99);
+            let mut next = || rng.next();
             let chunk: Vec<(Vec3, Vec3, f64)> = (0..37)
                 .map(|_| {
                     let a = Vec3::new(next(), next(), next()) * 0.02;
@@ -862,12 +861,7 @@ mod tests {
             let order = MAX_ORDER;
             let idx = Indices::new(order + 1);
             let terms = idx.start[order + 1];
-            let (gx, gw) = crate::quadrature::gauss_legendre(order / 2 + 1);
-            let nodes: Vec<(f64, f64)> = gx
-                .iter()
-                .zip(&gw)
-                .map(|(x, w)| ((x + 1.0) / 2.0, w / 2.0))
-                .collect();
+            let nodes = moment_nodes(order);
             // SAFETY: AVX2 was detected above.
             let fast = unsafe { chunk_moments_avx2(&chunk, &nodes, &idx, order, terms) };
             let slow = chunk_moments_body(&chunk, &nodes, &idx, order, terms);

@@ -335,7 +335,13 @@ impl PairModel {
             .unwrap_or_else(|| {
                 flux_per_amp_within(&source.conductors, sphere, &victim.edges, scene.tolerance)
             });
-        let src_points = crate::scene::source_points(source);
+        // The source's vertices decide the side of a sheet and which enclosures hold
+        // it; without shields they are not gathered (a sweep builds a model per step).
+        let src_points = if scene.barrier.is_some() || !scene.enclosures.is_empty() {
+            crate::scene::source_points(source)
+        } else {
+            Vec::new()
+        };
         let scattered = match &scene.barrier {
             None => None,
             Some(b) => {

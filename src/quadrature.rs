@@ -162,7 +162,10 @@ fn panel_pair<F: Fn(f64) -> (f64, f64)>(f: &F, t0: f64, t1: f64) -> (f64, f64, f
     let (x, wk, gauss_index) = kronrod();
     let (_, wg) = rule();
     let (mid, half) = ((t0 + t1) / 2.0, (t1 - t0) / 2.0);
-    let values: Vec<(f64, f64)> = x.iter().map(|xi| f(mid + half * xi)).collect();
+    let mut values = [(0.0, 0.0); 2 * ORDER + 1];
+    for (v, xi) in values.iter_mut().zip(x) {
+        *v = f(mid + half * xi);
+    }
     let k: f64 = values.iter().zip(wk).map(|(v, w)| w * v.0).sum();
     let (mut g, mut gross) = (0.0, 0.0);
     for (i, w) in gauss_index.iter().zip(wg) {
@@ -173,8 +176,7 @@ fn panel_pair<F: Fn(f64) -> (f64, f64)>(f: &F, t0: f64, t1: f64) -> (f64, f64, f
 }
 
 fn rule() -> &'static (Vec<f64>, Vec<f64>) {
-    static RULE: OnceLock<(Vec<f64>, Vec<f64>)> = OnceLock::new();
-    RULE.get_or_init(|| gauss_legendre(ORDER))
+    rule_of(ORDER)
 }
 
 /// Gauss–Legendre rules of 1 to ORDER points, computed once.

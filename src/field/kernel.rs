@@ -194,16 +194,33 @@ unsafe fn log_sum_avx2<F: Fn(usize, f64, f64) -> f64>(
         az = _mm256_add_pd(az, _mm256_mul_pd(ez, log));
         ag = _mm256_add_pd(ag, _mm256_and_pd(log, abs_mask));
     }
-    let lanes = |v: __m256d| -> [f64; 4] {
-        let mut out = [0.0f64; 4];
-        // SAFETY: `out` holds four values.
-        unsafe { _mm256_storeu_pd(out.as_mut_ptr(), v) };
-        out
-    };
+    let lanes = [lanes256(ax), lanes256(ay), lanes256(az), lanes256(ag)];
+    finish_log_sum(lanes, 4 * groups, soa, dist, two_a, careful)
+}
+
+/// The four lanes of `v`.
+#[cfg(target_arch = "x86_64")]
+#[inline(always)]
+fn lanes256(v: std::arch::x86_64::__m256d) -> [f64; 4] {
+    // SAFETY: __m256d and [f64; 4] have the same size and any bits are valid f64s.
+    unsafe { std::mem::transmute::<std::arch::x86_64::__m256d, [f64; 4]>(v) }
+}
+
+/// The end of both [`log_sum`] paths: the lane sums `[Σx, Σy, Σz, Σ|log|]` added in a
+/// fixed order, then the segments from `from` on that did not fill a group of four.
+#[inline(always)]
+fn finish_log_sum<F: Fn(usize, f64, f64) -> f64>(
+    lanes: [[f64; 4]; 4],
+    from: usize,
+    soa: &Soa,
+    dist: &[f64],
+    two_a: f64,
+    careful: &F,
+) -> (Vec3, f64) {
     let total = |a: [f64; 4]| (a[0] + a[1]) + (a[2] + a[3]);
-    let mut sum = Vec3::new(total(lanes(ax)), total(lanes(ay)), total(lanes(az)));
-    let mut gross = total(lanes(ag));
-    for k in 4 * groups..m {
+    let mut sum = Vec3::new(total(lanes[0]), total(lanes[1]), total(lanes[2]));
+    let mut gross = total(lanes[3]);
+    for k in from..soa.segments() {
         let log = lane_log(k, dist, soa.len[k], two_a, careful);
         sum += soa.direction(k) * log;
         gross += log.abs();
@@ -357,15 +374,7 @@ fn log_sum_body<F: Fn(usize, f64, f64) -> f64>(
             ag[j] += log[j].abs();
         }
     }
-    let total = |a: [f64; 4]| (a[0] + a[1]) + (a[2] + a[3]);
-    let mut sum = Vec3::new(total(ax), total(ay), total(az));
-    let mut gross = total(ag);
-    for k in 4 * groups..m {
-        let log = lane_log(k, dist, soa.len[k], two_a, careful);
-        sum += soa.direction(k) * log;
-        gross += log.abs();
-    }
-    (sum, gross)
+    finish_log_sum([ax, ay, az, ag], 4 * groups, soa, dist, two_a, careful)
 }
 
 /// The log of segment `k` when the series does not apply: the closed form where it is
@@ -395,25 +404,6 @@ fn lane_log<F: Fn(usize, f64, f64) -> f64>(
     }
 }
 
-fn vertex_distances(soa: &Soa, r: &Vec3, out: &mut Vec<f64>) {
-    let n = soa.x.len();
-    out.resize(n, 0.0);
-    let (rx, ry, rz) = (f64x4::splat(r.x), f64x4::splat(r.y), f64x4::splat(r.z));
-    let groups = n / 4;
-    for g in 0..groups {
-        let k = 4 * g;
-        let dx = rx - load(&soa.x, k);
-        let dy = ry - load(&soa.y, k);
-        let dz = rz - load(&soa.z, k);
-        let d = (dx * dx + dy * dy + dz * dz).sqrt().to_array();
-        out[k..k + 4].copy_from_slice(&d);
-    }
-    for (k, o) in out.iter_mut().enumerate().skip(4 * groups) {
-        *o =
-            ((r.x - soa.x[k]).powi(2) + (r.y - soa.y[k]).powi(2) + (r.z - soa.z[k]).powi(2)).sqrt();
-    }
-}
-
 /// Σ of the segments' B (without μ0/4π) at `r` (m) for squared wire radius `a2` (m²):
 /// 2L(Ri+Rf)/(Ri Rf u (Ri+Rf+L)) · ê × (r − a) with u = Ri+Rf−L, four segments at a
 /// time. `careful(k, r_i, r_f)` gives segment `k`'s B for points near its line (inside
@@ -426,7 +416,7 @@ pub(crate) fn field_sum<F: Fn(usize, f64, f64) -> Vec3>(
 ) -> Vec3 {
     DISTANCES.with(|buf| {
         let mut dist = buf.borrow_mut();
-        vertex_distances(soa, r, &mut dist);
+        distances_into(soa, r, &mut dist);
         segment_fields(soa, r, &dist, a2, careful)
     })
 }
@@ -589,10 +579,7 @@ unsafe fn field_quad_avx2<F: Fn(usize, usize) -> Vec3>(
     if m == 0 {
         return extra;
     }
-    let lanes = |v: __m256d| -> [f64; 4] {
-        // SAFETY: __m256d and [f64; 4] have the same size and any bits are valid f64s.
-        unsafe { std::mem::transmute::<__m256d, [f64; 4]>(v) }
-    };
+    let lanes = lanes256;
     let rx = _mm256_setr_pd(pts[0].x, pts[1].x, pts[2].x, pts[3].x);
     let ry = _mm256_setr_pd(pts[0].y, pts[1].y, pts[2].y, pts[3].y);
     let rz = _mm256_setr_pd(pts[0].z, pts[1].z, pts[2].z, pts[3].z);

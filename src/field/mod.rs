@@ -58,8 +58,7 @@ pub trait FieldSource: Send + Sync {
     fn b_many(&self, pts: &[Vec3]) -> Vec<Vec3> {
         let mut out = Vec::with_capacity(pts.len());
         for c in pts.chunks(4) {
-            let block: [Vec3; 4] = std::array::from_fn(|i| c[i.min(c.len() - 1)]);
-            out.extend(self.b_block(&block).into_iter().take(c.len()));
+            out.extend(self.b_block(&padded_block(c)).into_iter().take(c.len()));
         }
         out
     }
@@ -70,6 +69,12 @@ pub trait FieldSource: Send + Sync {
     fn bounding_sphere(&self) -> Option<(Vec3, f64)> {
         None
     }
+}
+
+/// Up to four points (m) as a block of four, a short block padded with copies of its
+/// last point.
+pub(crate) fn padded_block(c: &[Vec3]) -> [Vec3; 4] {
+    std::array::from_fn(|i| c[i.min(c.len() - 1)])
 }
 
 /// The smallest-ish sphere (centre, radius; m) around `points`: centred on their

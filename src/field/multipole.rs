@@ -484,7 +484,7 @@ impl FarField {
         let idx = &self.idx;
         let r2 = f64x4::from(r2s);
         let d = [f64x4::from(dv[0]), f64x4::from(dv[1]), f64x4::from(dv[2])];
-        let mut buf = Lanes::take();
+        let mut buf = lane_coefficients();
         let a = buf.get();
         a[TERMS] = f64x4::ZERO;
         a[0] = f64x4::ONE / f64x4::from(rs);
@@ -552,7 +552,7 @@ impl FarField {
             return None;
         }
         let idx = &self.idx;
-        let mut buf = Coefficients::take();
+        let mut buf = coefficients();
         let a = buf.get();
         a[0] = 1.0 / r;
         let dv = [d.x, d.y, d.z];
@@ -615,7 +615,7 @@ impl FarField {
         let r2 = d.norm_squared();
         let r = r2.sqrt();
         let idx = &self.idx;
-        let mut buf = Coefficients::take();
+        let mut buf = coefficients();
         let a = buf.get();
         a[0] = 1.0 / r;
         let dv = [d.x, d.y, d.z];
@@ -646,65 +646,53 @@ impl FarField {
 /// Entries of the multi-index table through degree MAX_ORDER + 1: C(MAX_ORDER + 4, 3).
 const TERMS: usize = (MAX_ORDER + 2) * (MAX_ORDER + 3) * (MAX_ORDER + 4) / 6;
 
-/// A per-thread scratch array for the Taylor coefficients a_k, taken for one
-/// evaluation and put back when dropped (every entry is written before it is read, so
-/// it is never cleared).
-struct Coefficients(Option<Box<[f64; TERMS]>>);
+/// A per-thread scratch array, taken for one evaluation and put back when dropped
+/// (every entry is written before it is read, so it is never cleared).
+struct Scratch<T: 'static> {
+    home: &'static std::thread::LocalKey<std::cell::Cell<Option<Box<T>>>>,
+    made: fn() -> Box<T>,
+    array: Option<Box<T>>,
+}
+
+impl<T: 'static> Scratch<T> {
+    fn take(
+        home: &'static std::thread::LocalKey<std::cell::Cell<Option<Box<T>>>>,
+        made: fn() -> Box<T>,
+    ) -> Self {
+        let array = home.with(|c| c.take()).or_else(|| Some(made()));
+        Scratch { home, made, array }
+    }
+
+    fn get(&mut self) -> &mut T {
+        self.array.get_or_insert_with(self.made)
+    }
+}
+
+impl<T: 'static> Drop for Scratch<T> {
+    fn drop(&mut self) {
+        if let Some(b) = self.array.take() {
+            self.home.with(|c| c.set(Some(b)));
+        }
+    }
+}
 
 thread_local! {
-    static SCRATCH: std::cell::Cell<Option<Box<[f64; TERMS]>>> =
+    /// The Taylor coefficients a_k of [`FarField::b`] and [`FarField::a_degrees`].
+    static COEFFICIENTS: std::cell::Cell<Option<Box<[f64; TERMS]>>> =
         const { std::cell::Cell::new(None) };
-}
-
-impl Coefficients {
-    fn take() -> Self {
-        let b = SCRATCH
-            .with(|c| c.take())
-            .unwrap_or_else(|| Box::new([0.0; TERMS]));
-        Coefficients(Some(b))
-    }
-
-    fn get(&mut self) -> &mut [f64; TERMS] {
-        self.0.get_or_insert_with(|| Box::new([0.0; TERMS]))
-    }
-}
-
-/// The four-lane scratch array of [`FarField::b4`], with one extra slot held at zero.
-struct Lanes(Option<Box<[wide::f64x4; TERMS + 1]>>);
-
-thread_local! {
+    /// The four-lane coefficients of [`FarField::b4`], with one extra slot held at zero.
     static LANES: std::cell::Cell<Option<Box<[wide::f64x4; TERMS + 1]>>> =
         const { std::cell::Cell::new(None) };
 }
 
-impl Lanes {
-    fn take() -> Self {
-        let b = LANES
-            .with(|c| c.take())
-            .unwrap_or_else(|| Box::new([wide::f64x4::ZERO; TERMS + 1]));
-        Lanes(Some(b))
-    }
-
-    fn get(&mut self) -> &mut [wide::f64x4; TERMS + 1] {
-        self.0
-            .get_or_insert_with(|| Box::new([wide::f64x4::ZERO; TERMS + 1]))
-    }
+/// The scratch array of the one-point series.
+fn coefficients() -> Scratch<[f64; TERMS]> {
+    Scratch::take(&COEFFICIENTS, || Box::new([0.0; TERMS]))
 }
 
-impl Drop for Lanes {
-    fn drop(&mut self) {
-        if let Some(b) = self.0.take() {
-            LANES.with(|c| c.set(Some(b)));
-        }
-    }
-}
-
-impl Drop for Coefficients {
-    fn drop(&mut self) {
-        if let Some(b) = self.0.take() {
-            SCRATCH.with(|c| c.set(Some(b)));
-        }
-    }
+/// The scratch array of the four-lane series.
+fn lane_coefficients() -> Scratch<[wide::f64x4; TERMS + 1]> {
+    Scratch::take(&LANES, || Box::new([wide::f64x4::ZERO; TERMS + 1]))
 }
 
 /// A source whose far field comes from its multipole expansion where that is within
@@ -816,8 +804,7 @@ impl FieldSource for Accelerated<'_> {
         let mut out = Vec::with_capacity(pts.len());
         let mut direct = Vec::new();
         for c in pts.chunks(4) {
-            let block: [Vec3; 4] = std::array::from_fn(|i| c[i.min(c.len() - 1)]);
-            let series = far.b4(&block, self.tolerance);
+            let series = far.b4(&super::padded_block(c), self.tolerance);
             for (i, p) in c.iter().enumerate() {
                 match series[i] {
                     Some(e) => out.push(self.with_dipoles(e.value, p)),

@@ -6,7 +6,9 @@
 //! * `bound/sqrt+div`: 2e6 square roots and divisions, four-wide on every thread: the
 //!   machine's own bound for the field kernel (one of each per pair), in the same units;
 //!   `bound/sqrt+div-avx2` the same in 256-bit registers, the width the field kernel
-//!   uses on a CPU with AVX2.
+//!   uses on a CPU with AVX2; `bound/sqrt+div-avx512` in 512-bit registers, and
+//!   `bound/sqrt-avx512` the square roots alone: the bound of the AVX-512 kernels,
+//!   which take their quotients by Newton steps on the multiply units.
 //! * `sweep/1000steps-2000seg`: a 1000-step distance sweep of a 10 × 5 mm rectangular
 //!   victim past a 2000-segment polygon source, the far-field moments built afresh in
 //!   every run (the target: 0.1 s); `-exact` the same with direct sums only.
@@ -68,7 +70,53 @@ fn kernels(c: &mut Criterion) {
             b.iter(|| black_box(sqrt_div_avx2(&xs)))
         });
     }
+    // With AVX-512 the kernels take their quotients by Newton steps on the multiply
+    // units and leave the divider to the square roots: their bound is then one
+    // hardware square root per pair (and the sqrt+div bounds above can be passed).
+    #[cfg(target_arch = "x86_64")]
+    if std::is_x86_feature_detected!("avx512f") {
+        g.bench_function("bound/sqrt+div-avx512", |b| {
+            b.iter(|| black_box(avx512_bound(&xs, true)))
+        });
+        g.bench_function("bound/sqrt-avx512", |b| {
+            b.iter(|| black_box(avx512_bound(&xs, false)))
+        });
+    }
     g.finish();
+}
+
+/// Σ (x + 1)/√x (with `divide`) or Σ (x + √x) over `xs` in 512-bit registers
+/// (AVX-512F), in parallel chunks: one square root, and with `divide` one division, per
+/// element.
+#[cfg(target_arch = "x86_64")]
+fn avx512_bound(xs: &[f64], divide: bool) -> f64 {
+    use rayon::prelude::*;
+    #[target_feature(enable = "avx512f")]
+    fn chunk(c: &[f64], divide: bool) -> f64 {
+        use std::arch::x86_64::*;
+        let one = _mm512_set1_pd(1.0);
+        let mut acc = [_mm512_setzero_pd(); 4];
+        for q in c.chunks_exact(32) {
+            for (j, a) in acc.iter_mut().enumerate() {
+                let v: [f64; 8] = std::array::from_fn(|i| q[8 * j + i]);
+                // SAFETY: same size, any bits are valid f64s.
+                let x = unsafe { std::mem::transmute::<[f64; 8], __m512d>(v) };
+                let r = _mm512_sqrt_pd(x);
+                let term = if divide {
+                    _mm512_div_pd(_mm512_add_pd(x, one), r)
+                } else {
+                    _mm512_add_pd(x, r)
+                };
+                *a = _mm512_add_pd(*a, term);
+            }
+        }
+        let s = _mm512_add_pd(_mm512_add_pd(acc[0], acc[1]), _mm512_add_pd(acc[2], acc[3]));
+        _mm512_reduce_add_pd(s)
+    }
+    // SAFETY: called only after AVX-512F was detected.
+    xs.par_chunks(1 << 14)
+        .map(|c| unsafe { chunk(c, divide) })
+        .sum()
 }
 
 /// Σ (x + 1)/√x over `xs` with four-wide SIMD, in parallel chunks: one square root and

@@ -88,7 +88,7 @@ pub fn gauss_kronrod(n: usize) -> (Vec<f64>, Vec<f64>, Vec<usize>) {
             .map(|(x, w)| w * legendre(n, *x).0 * legendre(k, *x).0 * legendre(j, *x).0)
             .sum()
     };
-    let terms: Vec<usize> = (0..=n).filter(|j| (j + n + 1) % 2 == 0).collect();
+    let terms: Vec<usize> = (0..=n).filter(|j| (j + n + 1).is_multiple_of(2)).collect();
     let conditions: Vec<usize> = (0..=n).filter(|k| (k + 1) % 2 == 0).collect();
     let size = terms.len();
     debug_assert_eq!(size, conditions.len());

@@ -278,8 +278,9 @@ pub fn run(
 
 /// Building a source's moments (degree 16) costs about as much as this many direct
 /// evaluations of its potential at one point, whatever its number of segments (both
-/// scale with it): 17 ms of one core for the 2000-segment polygon of the sweep
-/// benchmark, against 6 µs per point.
+/// scale with it): 11.5 ms of one core for the 2000-segment polygon of the sweep
+/// benchmark, against 3.1–4.4 µs per point with the AVX-512 potential kernel (a ratio
+/// of 2600–3700; it was 17 ms against 6 µs with the 256-bit kernel).
 const MOMENT_BUILD_POINTS: usize = 3000;
 
 /// Whether a sweep of `victim` could save more than twice the moments' cost. Measured

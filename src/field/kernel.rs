@@ -9,7 +9,10 @@
 //! the wire radius to matter fall back to the library logarithm or the careful scalar
 //! form lane by lane. The order of additions is fixed, so results do not depend on the
 //! thread count, and the 256-bit (AVX2) and portable paths do the same operations in
-//! the same order, so results do not depend on the CPU either.
+//! the same order, so they give the same bits. A CPU with AVX-512 runs the eight-lane
+//! forms of [`super::avx512`] instead, whose square roots and quotients are within an
+//! ulp of these: results there agree with the other paths to rounding (a few ulp of
+//! each sum's gross size), not to the bit.
 
 use super::Vec3;
 use std::cell::RefCell;
@@ -53,6 +56,16 @@ impl Soa {
         self.len.len()
     }
 
+    /// The vertex coordinates (m): x, y and z, one more than the segments.
+    pub(crate) fn vertex_arrays(&self) -> (&[f64], &[f64], &[f64]) {
+        (&self.x, &self.y, &self.z)
+    }
+
+    /// Each segment's unit direction (x, y, z) and length (m).
+    pub(crate) fn segment_arrays(&self) -> (&[f64], &[f64], &[f64], &[f64]) {
+        (&self.ex, &self.ey, &self.ez, &self.len)
+    }
+
     /// Unit direction of segment `k`.
     pub(crate) fn direction(&self, k: usize) -> Vec3 {
         Vec3::new(self.ex[k], self.ey[k], self.ez[k])
@@ -71,10 +84,11 @@ fn load(v: &[f64], k: usize) -> f64x4 {
 /// and wire radius `radius` (m). `careful(k, r_i, r_f)` gives the log of segment `k`
 /// for points near it.
 ///
-/// With 256-bit vectors (AVX2, detected at run time) four segments run at once, with
-/// 128-bit vectors two at a time. Both widths run the same source, compiled twice: the
-/// same IEEE operations in the same order in every lane (Rust never contracts a·b + c
-/// into a fused multiply-add), so they give the same bits.
+/// With 512-bit vectors (AVX-512F, detected at run time) eight segments run at once
+/// ([`super::avx512::log_sum_oct`]); with 256-bit vectors (AVX2) four, with 128-bit
+/// vectors two at a time. The last two do the same IEEE operations in the same order
+/// in every lane (Rust never contracts a·b + c into a fused multiply-add), so they give
+/// the same bits.
 pub(crate) fn log_sum<F: Fn(usize, f64, f64) -> f64>(
     soa: &Soa,
     r: &Vec3,
@@ -83,6 +97,11 @@ pub(crate) fn log_sum<F: Fn(usize, f64, f64) -> f64>(
 ) -> (Vec3, f64) {
     DISTANCES.with(|buf| {
         let mut dist = buf.borrow_mut();
+        #[cfg(target_arch = "x86_64")]
+        if super::avx512::available() {
+            // SAFETY: the CPU supports AVX-512F, checked just above.
+            return unsafe { super::avx512::log_sum_oct(soa, r, radius, &careful, &mut dist) };
+        }
         #[cfg(target_arch = "x86_64")]
         if std::is_x86_feature_detected!("avx2") {
             // SAFETY: the CPU supports AVX2, checked just above.
@@ -209,7 +228,7 @@ fn lanes256(v: std::arch::x86_64::__m256d) -> [f64; 4] {
 /// The end of both [`log_sum`] paths: the lane sums `[Σx, Σy, Σz, Σ|log|]` added in a
 /// fixed order, then the segments from `from` on that did not fill a group of four.
 #[inline(always)]
-fn finish_log_sum<F: Fn(usize, f64, f64) -> f64>(
+pub(super) fn finish_log_sum<F: Fn(usize, f64, f64) -> f64>(
     lanes: [[f64; 4]; 4],
     from: usize,
     soa: &Soa,
@@ -241,12 +260,12 @@ fn distances_into(soa: &Soa, r: &Vec3, dist: &mut Vec<f64>) {
 }
 
 /// Largest L/(Ri+Rf) for which the log is taken from the atanh series.
-const SERIES_T: f64 = 0.2;
+pub(super) const SERIES_T: f64 = 0.2;
 
 /// 1/(2j+1), j = 0..=11: ln((1+t)/(1−t)) = 2t Σ t^2j/(2j+1) (Abramowitz & Stegun
 /// 4.1.28 with 4.6.22). For t ≤ 0.2 the first omitted term is under 0.04^12/25 < 1e-18
 /// of the sum.
-const ATANH: [f64; 12] = [
+pub(super) const ATANH: [f64; 12] = [
     1.0,
     1.0 / 3.0,
     1.0 / 5.0,
@@ -263,7 +282,7 @@ const ATANH: [f64; 12] = [
 
 /// Largest L/(Ri+Rf) for which the first six terms of the series suffice: the first
 /// omitted term is under 0.04^12/13 < 2e-18 of the sum.
-const SHORT_T: f64 = 0.04;
+pub(super) const SHORT_T: f64 = 0.04;
 
 /// ln((1+t)/(1−t)) for 0 ≤ t ≤ [`SHORT_T`] from the first six terms of its series, `t2`
 /// = t·t; the first steps are those of [`atanh_series`].
@@ -301,6 +320,18 @@ fn atanh_series(t: f64, t2: f64) -> f64 {
     let b2 = a4 + a5 * x2;
     let p = (b0 + b1 * x4) + b2 * x8;
     2.0 * t * p
+}
+
+/// [`log_sum`] by the portable body, whatever the CPU: the reference of the wider
+/// paths' tests.
+#[cfg(test)]
+pub(super) fn portable_log_sum<F: Fn(usize, f64, f64) -> f64>(
+    soa: &Soa,
+    r: &Vec3,
+    radius: f64,
+    careful: &F,
+) -> (Vec3, f64) {
+    log_sum_body(soa, r, radius, careful, &mut Vec::new())
 }
 
 /// The portable body of [`log_sum`]: fixed four-lane arrays, which the compiler turns
@@ -380,7 +411,7 @@ fn log_sum_body<F: Fn(usize, f64, f64) -> f64>(
 /// The log of segment `k` when the series does not apply: the closed form where it is
 /// safe, else `careful`.
 #[inline(never)]
-fn lane_log<F: Fn(usize, f64, f64) -> f64>(
+pub(super) fn lane_log<F: Fn(usize, f64, f64) -> f64>(
     k: usize,
     dist: &[f64],
     l: f64,
@@ -480,7 +511,8 @@ fn segment_fields<F: Fn(usize, f64, f64) -> Vec3>(
 /// one square root and one division. `careful(k, lane)` gives segment `k`'s B at point
 /// `lane` where the closed form is unsafe (inside the wire, or where Ri+Rf−L loses
 /// digits). Each lane's sum runs in segment order, so a point's result does not depend
-/// on the other points of its block.
+/// on the other points of its block. (On a CPU with AVX-512 a polyline sends its blocks
+/// to the eight-point [`super::avx512::field_oct`] instead.)
 pub(crate) fn field_block<F: Fn(usize, usize) -> Vec3>(
     soa: &Soa,
     pts: &[Vec3; 4],

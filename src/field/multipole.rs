@@ -220,7 +220,7 @@ fn chunk_moments_body(
             fs.push(d * (w * wt));
         }
     }
-    while ys.len() % 4 != 0 {
+    while !ys.len().is_multiple_of(4) {
         ys.push(Vec3::zeros());
         fs.push(Vec3::zeros());
     }

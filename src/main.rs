@@ -179,6 +179,15 @@ fn progress_bar() -> Option<indicatif::ProgressBar> {
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
+    if let Ok(value) = std::env::var("STRAYFLUX_SIMD")
+        && strayflux::field::Simd::from_name(value.trim()).is_none()
+    {
+        eprintln!(
+            "strayflux: STRAYFLUX_SIMD={value:?}: expected one of {} (or leave it unset)",
+            strayflux::field::Simd::NAMES.join(", ")
+        );
+        return ExitCode::from(2);
+    }
     // Ctrl-C: drop any half-written temporary file (final names hold either the earlier
     // result or a complete new one) and stop with the conventional status 130.
     let _ = ctrlc::set_handler(|| {

@@ -456,3 +456,40 @@ fn unreadable_files_and_bad_arguments_exit_two() {
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(err.starts_with(&format!("{}:3:3:", csv.display())), "{err}");
 }
+
+#[test]
+fn every_kernel_path_reproduces_maxwell_and_a_bad_simd_cap_is_refused() {
+    // Maxwell's formula for coaxial circles (Grover ch. 13) on each instruction-set
+    // path STRAYFLUX_SIMD can select (a CPU without the wider ones runs the widest it
+    // has). The 256-bit and portable paths give the same bits.
+    let path = scene("coax-simd.toml", &coaxial_scene(10.0, "1 V"));
+    let expect = maxwell_m(0.020, 0.015, 0.010);
+    let mut by_level = Vec::new();
+    for level in ["portable", "avx2", "avx512"] {
+        let out = bin()
+            .args(["couple", path.to_str().unwrap(), "--json"])
+            .env("STRAYFLUX_SIMD", level)
+            .output()
+            .expect("the binary runs");
+        let doc = stdout_json(&out);
+        let m = doc["victims"][0]["sources"][0]["mutual_inductance_h"]
+            .as_f64()
+            .unwrap();
+        assert!(
+            ((m - expect) / expect).abs() < 1e-6,
+            "{level}: M {m} vs Maxwell {expect}"
+        );
+        by_level.push(m);
+    }
+    assert_eq!(by_level[0].to_bits(), by_level[1].to_bits());
+    let out = bin()
+        .args(["couple", path.to_str().unwrap()])
+        .env("STRAYFLUX_SIMD", "avx3")
+        .output()
+        .expect("the binary runs");
+    assert_eq!(out.status.code(), Some(2));
+    assert!(out.stdout.is_empty());
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(err.lines().count(), 1, "{err}");
+    assert!(err.contains("STRAYFLUX_SIMD=\"avx3\"") && err.contains("portable, avx2, avx512"));
+}

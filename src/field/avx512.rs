@@ -20,11 +20,10 @@ use super::Vec3;
 use super::kernel::{ATANH, SERIES_T, SHORT_T, Soa, finish_log_sum, lane_log};
 use std::arch::x86_64::*;
 
-/// Whether this CPU runs the 512-bit paths, checked once.
+/// Whether this run uses the 512-bit paths: the CPU has AVX-512F and `STRAYFLUX_SIMD`
+/// does not cap it ([`super::simd`]).
 pub(crate) fn available() -> bool {
-    use std::sync::OnceLock;
-    static AVAILABLE: OnceLock<bool> = OnceLock::new();
-    *AVAILABLE.get_or_init(|| std::is_x86_feature_detected!("avx512f"))
+    super::simd() >= super::Simd::Avx512
 }
 
 /// n/d in every lane, within a few ulp, for finite nonzero d.

@@ -103,8 +103,8 @@ pub(crate) fn log_sum<F: Fn(usize, f64, f64) -> f64>(
             return unsafe { super::avx512::log_sum_oct(soa, r, radius, &careful, &mut dist) };
         }
         #[cfg(target_arch = "x86_64")]
-        if std::is_x86_feature_detected!("avx2") {
-            // SAFETY: the CPU supports AVX2, checked just above.
+        if super::simd() >= super::Simd::Avx2 {
+            // SAFETY: the CPU supports AVX2, checked by `simd`.
             return unsafe { log_sum_avx2(soa, r, radius, &careful, &mut dist) };
         }
         log_sum_body(soa, r, radius, &careful, &mut dist)
@@ -524,8 +524,8 @@ pub(crate) fn field_block<F: Fn(usize, usize) -> Vec3>(
     // (Rust never contracts a·b + c into a fused multiply-add), so both give the same
     // bits.
     #[cfg(target_arch = "x86_64")]
-    if std::is_x86_feature_detected!("avx2") {
-        // SAFETY: the CPU supports AVX2, checked just above.
+    if super::simd() >= super::Simd::Avx2 {
+        // SAFETY: the CPU supports AVX2, checked by `simd`.
         return unsafe { field_quad_avx2(soa, pts, a2, &careful) };
     }
     // Two passes of two lanes: with 128-bit vectors the whole loop state then stays in

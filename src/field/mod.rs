@@ -216,6 +216,60 @@ impl FieldSource for Conductors {
     }
 }
 
+/// The vector instruction sets the kernels may use in this run.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord)]
+pub enum Simd {
+    /// Plain code that the compiler vectorises for the build target (128-bit on x86-64).
+    Portable,
+    /// 256-bit AVX2 intrinsics: the same bits as `Portable`.
+    Avx2,
+    /// 512-bit AVX-512F intrinsics: agrees with the others to rounding.
+    Avx512,
+}
+
+impl Simd {
+    /// The names `STRAYFLUX_SIMD` accepts, narrowest first.
+    pub const NAMES: [&'static str; 3] = ["portable", "avx2", "avx512"];
+
+    /// The cap named by `name` (one of [`Simd::NAMES`]), if any.
+    pub fn from_name(name: &str) -> Option<Simd> {
+        match name {
+            "portable" => Some(Simd::Portable),
+            "avx2" => Some(Simd::Avx2),
+            "avx512" => Some(Simd::Avx512),
+            _ => None,
+        }
+    }
+}
+
+/// The widest instruction set this CPU has, capped by the environment variable
+/// `STRAYFLUX_SIMD` (`portable`, `avx2` or `avx512`; for comparing and testing the
+/// narrower paths; the binary refuses other values), decided once per process.
+pub fn simd() -> Simd {
+    use std::sync::OnceLock;
+    static LEVEL: OnceLock<Simd> = OnceLock::new();
+    *LEVEL.get_or_init(|| {
+        let cap = std::env::var("STRAYFLUX_SIMD")
+            .ok()
+            .and_then(|v| Simd::from_name(v.trim()))
+            .unwrap_or(Simd::Avx512);
+        cpu_simd().min(cap)
+    })
+}
+
+fn cpu_simd() -> Simd {
+    #[cfg(target_arch = "x86_64")]
+    {
+        if std::is_x86_feature_detected!("avx512f") {
+            return Simd::Avx512;
+        }
+        if std::is_x86_feature_detected!("avx2") {
+            return Simd::Avx2;
+        }
+    }
+    Simd::Portable
+}
+
 /// B per ampere (T/A) of `source` at every point (m), in parallel over points. Each
 /// point's sum runs in a fixed order, so results do not depend on the thread count.
 pub fn b_at_points<S: FieldSource + ?Sized>(source: &S, points: &[Vec3]) -> Vec<Vec3> {

@@ -183,8 +183,8 @@ fn chunk_moments(
     terms: usize,
 ) -> Vec<[f64; 3]> {
     #[cfg(target_arch = "x86_64")]
-    if std::is_x86_feature_detected!("avx2") {
-        // SAFETY: the CPU supports AVX2, checked just above.
+    if super::simd() >= super::Simd::Avx2 {
+        // SAFETY: the CPU supports AVX2, checked by `simd`.
         return unsafe { chunk_moments_avx2(chunk, nodes, idx, order, terms) };
     }
     chunk_moments_body(chunk, nodes, idx, order, terms)

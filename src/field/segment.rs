@@ -93,18 +93,24 @@ pub(crate) fn distance_to_segment(r: &Vec3, a: &Vec3, b: &Vec3) -> f64 {
 }
 
 impl Polyline {
-    /// B per ampere (T/A) at eight points (m) by the 512-bit kernel. Call only when
-    /// [`super::avx512::available`] and the layout matches `vertices`.
-    #[cfg(target_arch = "x86_64")]
-    fn b_oct(&self, pts: &[Vec3; 8]) -> [Vec3; 8] {
-        let a2 = self.wire_radius * self.wire_radius;
-        let careful = |seg: usize, lane: usize| {
+    /// The careful form for a block kernel: segment `seg`'s B (without μ0/4π) at
+    /// `pts[lane]` (m), for squared wire radius `a2` (m²).
+    fn careful_b<'a>(&'a self, pts: &'a [Vec3], a2: f64) -> impl Fn(usize, usize) -> Vec3 + 'a {
+        move |seg, lane| {
             let (d_i, d_f) = (
                 pts[lane] - self.vertices[seg],
                 pts[lane] - self.vertices[seg + 1],
             );
             segment_b(&d_i, d_i.norm(), &d_f, d_f.norm(), a2)
-        };
+        }
+    }
+
+    /// B per ampere (T/A) at eight points (m) by the 512-bit kernel. Call only when
+    /// [`super::avx512::available`] and the layout matches `vertices`.
+    #[cfg(target_arch = "x86_64")]
+    fn b_oct(&self, pts: &[Vec3; 8]) -> [Vec3; 8] {
+        let a2 = self.wire_radius * self.wire_radius;
+        let careful = self.careful_b(pts, a2);
         // SAFETY: the callers checked that the CPU has AVX-512F.
         let b = unsafe { super::avx512::field_oct(&self.soa, pts, a2, &careful) };
         b.map(|b| b * (MU0_OVER_4PI * self.weight))
@@ -151,14 +157,8 @@ impl FieldSource for Polyline {
             return [b[0], b[1], b[2], b[3]];
         }
         let a2 = self.wire_radius * self.wire_radius;
-        let careful = |seg: usize, lane: usize| {
-            let (d_i, d_f) = (
-                pts[lane] - self.vertices[seg],
-                pts[lane] - self.vertices[seg + 1],
-            );
-            segment_b(&d_i, d_i.norm(), &d_f, d_f.norm(), a2)
-        };
-        field_block(&self.soa, pts, a2, careful).map(|b| b * (MU0_OVER_4PI * self.weight))
+        field_block(&self.soa, pts, a2, self.careful_b(pts, a2))
+            .map(|b| b * (MU0_OVER_4PI * self.weight))
     }
 
     fn b_many(&self, pts: &[Vec3]) -> Vec<Vec3> {

@@ -422,7 +422,7 @@ impl FarField {
         let q = q as f64;
         MU0_OVER_4PI * self.gross / (r_dist * r_dist)
             * std::f64::consts::SQRT_2
-            * t.powf(q + 1.0)
+            * t.powi(q as i32 + 1)
             * ((q + 2.0) - (q + 1.0) * t)
             / ((1.0 - t) * (1.0 - t))
     }
@@ -453,26 +453,7 @@ impl FarField {
     /// [`FarField::b`] at four points at once, one per SIMD lane: each lane does the
     /// same operations in the same order as `b` and stops at its own degree, so the
     /// results are identical to four calls of `b`.
-    ///
-    /// On a CPU with AVX2 the same source is compiled for 256-bit registers (the same
-    /// IEEE operations in the same order, so the same bits; unit test).
     pub fn b4(&self, xs: &[Vec3; 4], tolerance: f64) -> [Option<Expanded>; 4] {
-        #[cfg(target_arch = "x86_64")]
-        if super::simd() >= super::Simd::Avx2 {
-            // SAFETY: the CPU supports AVX2, checked by `simd`.
-            return unsafe { self.b4_avx2(xs, tolerance) };
-        }
-        self.b4_body(xs, tolerance)
-    }
-
-    #[cfg(target_arch = "x86_64")]
-    #[target_feature(enable = "avx2")]
-    unsafe fn b4_avx2(&self, xs: &[Vec3; 4], tolerance: f64) -> [Option<Expanded>; 4] {
-        self.b4_body(xs, tolerance)
-    }
-
-    #[inline(always)]
-    fn b4_body(&self, xs: &[Vec3; 4], tolerance: f64) -> [Option<Expanded>; 4] {
         use wide::f64x4;
         let mut active = [false; 4];
         let mut dv = [[0.0f64; 4]; 3];

@@ -180,7 +180,7 @@ fn progress_bar() -> Option<indicatif::ProgressBar> {
 fn main() -> ExitCode {
     let cli = Cli::parse();
     if let Ok(value) = std::env::var("STRAYFLUX_SIMD")
-        && strayflux::field::Simd::from_name(value.trim()).is_none()
+        && strayflux::field::Simd::from_name(&value).is_none()
     {
         eprintln!(
             "strayflux: STRAYFLUX_SIMD={value:?}: expected one of {} (or leave it unset)",

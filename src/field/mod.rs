@@ -231,9 +231,10 @@ impl Simd {
     /// The names `STRAYFLUX_SIMD` accepts, narrowest first.
     pub const NAMES: [&'static str; 3] = ["portable", "avx2", "avx512"];
 
-    /// The cap named by `name` (one of [`Simd::NAMES`]), if any.
+    /// The cap named by `name` (one of [`Simd::NAMES`], in any case, spaces around it
+    /// ignored), if any.
     pub fn from_name(name: &str) -> Option<Simd> {
-        match name {
+        match name.trim().to_ascii_lowercase().as_str() {
             "portable" => Some(Simd::Portable),
             "avx2" => Some(Simd::Avx2),
             "avx512" => Some(Simd::Avx512),
@@ -251,7 +252,7 @@ pub fn simd() -> Simd {
     *LEVEL.get_or_init(|| {
         let cap = std::env::var("STRAYFLUX_SIMD")
             .ok()
-            .and_then(|v| Simd::from_name(v.trim()))
+            .and_then(|v| Simd::from_name(&v))
             .unwrap_or(Simd::Avx512);
         cpu_simd().min(cap)
     })

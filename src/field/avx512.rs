@@ -1,17 +1,17 @@
 //! The segment sums in 512-bit registers (AVX-512F, detected at run time): the field at
 //! eight points at once and the vector potential over eight segments at once.
 //!
-//! These paths do not use the divider. A square root is taken from the CPU's 14-bit
-//! reciprocal-square-root estimate, one Newton step for 1/√x (28 bits), then one
-//! correction of √x ≈ x·y by its residual x − (x·y)², evaluated with a fused
-//! multiply-add (Markstein, "IA-64 and Elementary Functions", 2000, ch. 8). A quotient
-//! n/d is taken the same way from the 14-bit reciprocal estimate: one Newton step
-//! y ← y + y(1 − d·y), then q ← q + y(n − d·q). Both results are within a few ulp of
-//! the correctly rounded ones (the unit tests below check 4 ulp against the hardware
-//! square root and division), so the sums agree with the 256-bit and portable paths to
-//! rounding, not to the bit. The divider of this CPU family takes 8 to 16 cycles per
-//! vector; the estimate and five fused operations issue in about three, on the ports the
-//! rest of the kernel uses.
+//! These paths leave the divider to the square roots. Square roots are the hardware's
+//! (correctly rounded). A quotient n/d is taken from the CPU's 14-bit reciprocal
+//! estimate, one Newton step y ← y + y(1 − d·y) (28 bits), then one correction
+//! q ← q + y(n − d·q) of q = n·y by its residual, evaluated with fused multiply-adds
+//! (Markstein, "IA-64 and Elementary Functions", 2000, ch. 8). The quotient is within
+//! 1 ulp of the correctly rounded one (unit test against the hardware division), so
+//! the sums agree with the 256-bit and portable paths to rounding, not to the bit. On
+//! the development machine the divider takes about 16 cycles per 512-bit division and 24
+//! per square root (measured); the estimate and its five fused operations run on the
+//! multiply ports instead, beside the square roots. (Taking the square roots by Newton
+//! steps as well was measured slower: the multiply ports are then the limit.)
 //!
 //! Within one path the operations and their order are fixed, so results do not depend
 //! on the thread count or on which other points share a block.

@@ -310,13 +310,7 @@ mod tests {
         let v = rng.wandering(301);
         let soa = Soa::new(&v);
         let blocks = (0..150)
-            .map(|trial| {
-                std::array::from_fn(|l| match (trial + l) % 5 {
-                    0 => v[(trial * 7 + l) % v.len()],
-                    1 => (v[trial % 301] + v[trial % 301 + 1]) / 2.0,
-                    _ => Vec3::new(rng.next(), rng.next(), rng.next()) * 0.1,
-                })
-            })
+            .map(|trial| std::array::from_fn(|l| rng.near_and_far(&v, trial, l)))
             .collect();
         (v, soa, blocks)
     }

@@ -693,16 +693,11 @@ mod tests {
             // on segment extensions (the careful lanes).
             let mut rng = crate::field::TestLcg(12345);
             let v = rng.wandering(300);
-            let mut next = || rng.next();
             let soa = Soa::new(&v);
             let a2 = 1e-6;
             let careful = |k: usize, lane: usize| Vec3::new(k as f64, lane as f64, 1.0);
             for trial in 0..200 {
-                let pts: [Vec3; 4] = std::array::from_fn(|l| match (trial + l) % 5 {
-                    0 => v[(trial * 7 + l) % v.len()],
-                    1 => (v[trial % 300] + v[trial % 300 + 1]) / 2.0,
-                    _ => Vec3::new(next(), next(), next()) * 0.1,
-                });
+                let pts: [Vec3; 4] = std::array::from_fn(|l| rng.near_and_far(&v, trial, l));
                 // SAFETY: AVX2 was detected above.
                 let fast = unsafe { field_quad_avx2(&soa, &pts, a2, &careful) };
                 let lo = field_pair(&soa, [pts[0], pts[1]], a2, careful);

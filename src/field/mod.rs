@@ -58,11 +58,7 @@ pub trait FieldSource: Send + Sync {
     /// four ([`FieldSource::b_block`], a short last block padded with copies of its last
     /// point). Each point's value does not depend on the other points.
     fn b_many(&self, pts: &[Vec3]) -> Vec<Vec3> {
-        let mut out = Vec::with_capacity(pts.len());
-        for c in pts.chunks(4) {
-            out.extend(self.b_block(&padded_block(c)).into_iter().take(c.len()));
-        }
-        out
+        in_blocks::<4>(pts, |b| self.b_block(b))
     }
 
     /// A sphere (centre m, radius m) holding every conductor, if the source knows one:
@@ -73,10 +69,23 @@ pub trait FieldSource: Send + Sync {
     }
 }
 
-/// Up to four points (m) as a block of four, a short block padded with copies of its
-/// last point.
-pub(crate) fn padded_block(c: &[Vec3]) -> [Vec3; 4] {
+/// Up to `N` points (m) as a block of `N`, a short block padded with copies of its last
+/// point.
+pub(crate) fn padded_block<const N: usize>(c: &[Vec3]) -> [Vec3; N] {
     std::array::from_fn(|i| c[i.min(c.len() - 1)])
+}
+
+/// `block` (values at `N` points at once) applied to `pts` in order, `N` at a time, the
+/// last block padded ([`padded_block`]): one value per point.
+pub(crate) fn in_blocks<const N: usize>(
+    pts: &[Vec3],
+    block: impl Fn(&[Vec3; N]) -> [Vec3; N],
+) -> Vec<Vec3> {
+    let mut out = Vec::with_capacity(pts.len());
+    for c in pts.chunks(N) {
+        out.extend(block(&padded_block(c)).into_iter().take(c.len()));
+    }
+    out
 }
 
 /// The smallest-ish sphere (centre, radius; m) around `points`: centred on their
@@ -304,5 +313,17 @@ impl TestLcg {
             v.push(last + Vec3::new(self.next(), self.next(), self.next()) * 0.01);
         }
         v
+    }
+
+    /// A point for the block kernels' tests, near or far from the path `v`: by
+    /// (trial + lane) mod 5, a vertex, a segment's midpoint (both careful lanes), or a
+    /// random point within 0.05 m of the origin on each axis.
+    pub(crate) fn near_and_far(&mut self, v: &[Vec3], trial: usize, lane: usize) -> Vec3 {
+        let segments = v.len() - 1;
+        match (trial + lane) % 5 {
+            0 => v[(trial * 7 + lane) % v.len()],
+            1 => (v[trial % segments] + v[trial % segments + 1]) / 2.0,
+            _ => Vec3::new(self.next(), self.next(), self.next()) * 0.1,
+        }
     }
 }

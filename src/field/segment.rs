@@ -153,7 +153,7 @@ impl FieldSource for Polyline {
         if super::avx512::available() {
             // The eight-lane path, so that a point's value is the same whichever
             // block size reached it.
-            let b = self.b_oct(&std::array::from_fn(|k| pts[k.min(3)]));
+            let b = self.b_oct(&super::padded_block(pts));
             return [b[0], b[1], b[2], b[3]];
         }
         let a2 = self.wire_radius * self.wire_radius;
@@ -164,22 +164,9 @@ impl FieldSource for Polyline {
     fn b_many(&self, pts: &[Vec3]) -> Vec<Vec3> {
         #[cfg(target_arch = "x86_64")]
         if super::avx512::available() && self.soa.segments() == self.segment_count() {
-            let mut out = Vec::with_capacity(pts.len());
-            for c in pts.chunks(8) {
-                let block = std::array::from_fn(|k| c[k.min(c.len() - 1)]);
-                out.extend(self.b_oct(&block).into_iter().take(c.len()));
-            }
-            return out;
+            return super::in_blocks::<8>(pts, |b| self.b_oct(b));
         }
-        let mut out = Vec::with_capacity(pts.len());
-        for c in pts.chunks(4) {
-            out.extend(
-                self.b_block(&super::padded_block(c))
-                    .into_iter()
-                    .take(c.len()),
-            );
-        }
-        out
+        super::in_blocks::<4>(pts, |b| self.b_block(b))
     }
 
     fn a_per_amp(&self, r: &Vec3) -> Vec3 {

@@ -17,7 +17,7 @@
 //! on the thread count or on which other points share a block.
 
 use super::Vec3;
-use super::kernel::{ATANH, SERIES_T, SHORT_T, Soa, finish_log_sum, lane_log};
+use super::kernel::{ATANH, FieldArrays, SERIES_T, SHORT_T, Soa, finish_log_sum, lane_log};
 use std::arch::x86_64::*;
 
 /// Whether this run uses the 512-bit paths: the CPU has AVX-512F and `STRAYFLUX_SIMD`
@@ -49,10 +49,12 @@ fn from_lanes(v: [f64; 8]) -> __m512d {
     unsafe { std::mem::transmute::<[f64; 8], __m512d>(v) }
 }
 
-/// Σ of the segments' B (without μ0/4π) at eight points at once, one per lane, for
-/// squared wire radius `a2` (m²): the 512-bit form of the four-point field block of
-/// [`super::kernel`], with the same closed form and the same careful fallback
-/// (`careful(k, lane)` gives segment `k`'s B at point `lane`).
+/// Σ of the segments' B (without μ0/4π) at eight points at once, one per lane: the
+/// 512-bit form of the four-point field block of [`super::kernel`], with the same closed
+/// form and the same careful fallback (`careful(k, lane)` gives segment `k`'s B at point
+/// `lane`). A lane is careful when Ri + Rf ≤ L + max(L/100, 2a) for the layout's wire
+/// radius a ([`Soa::field_arrays`]): near the segment, where Ri + Rf − L loses digits,
+/// and on or inside the wire (every point within a of the segment has Ri + Rf ≤ L + 2a).
 ///
 /// # Safety
 /// The CPU must support AVX-512F ([`available`]).
@@ -60,7 +62,6 @@ fn from_lanes(v: [f64; 8]) -> __m512d {
 pub(crate) unsafe fn field_oct<F: Fn(usize, usize) -> Vec3>(
     soa: &Soa,
     pts: &[Vec3; 8],
-    a2: f64,
     careful: &F,
 ) -> [Vec3; 8] {
     let m = soa.segments();
@@ -69,9 +70,16 @@ pub(crate) unsafe fn field_oct<F: Fn(usize, usize) -> Vec3>(
         return extra;
     }
     let (vx, vy, vz) = soa.vertex_arrays();
-    let (ux, uy, uz, len) = soa.segment_arrays();
+    let FieldArrays {
+        lx,
+        ly,
+        lz,
+        len,
+        reach,
+    } = soa.field_arrays();
     assert!(vx.len() > m && vy.len() > m && vz.len() > m);
-    assert!(ux.len() >= m && uy.len() >= m && uz.len() >= m && len.len() >= m);
+    assert!(lx.len() >= m && ly.len() >= m && lz.len() >= m);
+    assert!(len.len() >= m && reach.len() >= m);
     let rx = from_lanes(pts.map(|p| p.x));
     let ry = from_lanes(pts.map(|p| p.y));
     let rz = from_lanes(pts.map(|p| p.z));
@@ -80,8 +88,6 @@ pub(crate) unsafe fn field_oct<F: Fn(usize, usize) -> Vec3>(
         _mm512_setzero_pd(),
         _mm512_setzero_pd(),
     );
-    let hundred = _mm512_set1_pd(100.0);
-    let wire2 = _mm512_set1_pd(a2);
     let norm = |x: __m512d, y: __m512d, z: __m512d| {
         _mm512_sqrt_pd(_mm512_fmadd_pd(
             z,
@@ -96,35 +102,52 @@ pub(crate) unsafe fn field_oct<F: Fn(usize, usize) -> Vec3>(
     let mut dy = _mm512_sub_pd(ry, at(vy, 0));
     let mut dz = _mm512_sub_pd(rz, at(vz, 0));
     let mut ri = norm(dx, dy, dz);
-    for k in 0..m {
-        let nx = _mm512_sub_pd(rx, at(vx, k + 1));
-        let ny = _mm512_sub_pd(ry, at(vy, k + 1));
-        let nz = _mm512_sub_pd(rz, at(vz, k + 1));
-        let rf = norm(nx, ny, nz);
-        let (ex, ey, ez, l) = (at(ux, k), at(uy, k), at(uz, k), at(len, k));
-        // ê × (r − a)
-        let cx = _mm512_fmsub_pd(ey, dz, _mm512_mul_pd(ez, dy));
-        let cy = _mm512_fmsub_pd(ez, dx, _mm512_mul_pd(ex, dz));
-        let cz = _mm512_fmsub_pd(ex, dy, _mm512_mul_pd(ey, dx));
-        let rho2 = _mm512_fmadd_pd(cz, cz, _mm512_fmadd_pd(cy, cy, _mm512_mul_pd(cx, cx)));
-        let s = _mm512_add_pd(ri, rf);
-        let u = _mm512_sub_pd(s, l);
-        // Safe lanes: outside the wire, and u > l/100.
-        let ok = _mm512_cmp_pd_mask::<_CMP_GE_OQ>(rho2, wire2)
-            & _mm512_cmp_pd_mask::<_CMP_GT_OQ>(_mm512_mul_pd(u, hundred), l);
-        // l·s / (ri·rf·u·(s + l)); the factor 2 is applied to the sums.
-        let factor = div8(
-            _mm512_mul_pd(l, s),
-            _mm512_mul_pd(_mm512_mul_pd(_mm512_mul_pd(ri, rf), u), _mm512_add_pd(s, l)),
-        );
-        if ok != 0xff {
-            careful_lanes(ok, k, careful, &mut extra);
-        }
-        let factor = _mm512_maskz_mov_pd(ok, factor);
-        bx = _mm512_fmadd_pd(cx, factor, bx);
-        by = _mm512_fmadd_pd(cy, factor, by);
-        bz = _mm512_fmadd_pd(cz, factor, bz);
-        (dx, dy, dz, ri) = (nx, ny, nz, rf);
+    // One segment: its vector L = b − a, so that L × (r − a) = L·ê × (r − a) carries
+    // the closed form's factor L.
+    macro_rules! segment {
+        ($k:expr) => {{
+            let k = $k;
+            let nx = _mm512_sub_pd(rx, at(vx, k + 1));
+            let ny = _mm512_sub_pd(ry, at(vy, k + 1));
+            let nz = _mm512_sub_pd(rz, at(vz, k + 1));
+            let rf = norm(nx, ny, nz);
+            let (ex, ey, ez, l) = (at(lx, k), at(ly, k), at(lz, k), at(len, k));
+            // L × (r − a)
+            let cx = _mm512_fmsub_pd(ey, dz, _mm512_mul_pd(ez, dy));
+            let cy = _mm512_fmsub_pd(ez, dx, _mm512_mul_pd(ex, dz));
+            let cz = _mm512_fmsub_pd(ex, dy, _mm512_mul_pd(ey, dx));
+            let s = _mm512_add_pd(ri, rf);
+            // Safe lanes: Ri + Rf beyond the segment's reach.
+            let ok = _mm512_cmp_pd_mask::<_CMP_GT_OQ>(s, at(reach, k));
+            // s / (ri·rf·(s − l)·(s + l)); the factor 2 is applied to the sums.
+            let den = _mm512_mul_pd(
+                _mm512_mul_pd(ri, rf),
+                _mm512_mul_pd(_mm512_sub_pd(s, l), _mm512_add_pd(s, l)),
+            );
+            let factor = div8(s, den);
+            if ok != 0xff {
+                careful_lanes(ok, k, careful, &mut extra);
+            }
+            let factor = _mm512_maskz_mov_pd(ok, factor);
+            bx = _mm512_fmadd_pd(cx, factor, bx);
+            by = _mm512_fmadd_pd(cy, factor, by);
+            bz = _mm512_fmadd_pd(cz, factor, bz);
+            (dx, dy, dz, ri) = (nx, ny, nz, rf);
+        }};
+    }
+    // Two segments per turn of the loop, which lets the compiler keep the carried
+    // values in place instead of copying them.
+    let pairs = m / 2 * 2;
+    let mut k = 0;
+    while k < pairs {
+        segment!(k);
+        segment!(k + 1);
+        k += 2;
+    }
+    // The odd last segment, if any.
+    while k < m {
+        segment!(k);
+        k += 1;
     }
     let two = _mm512_set1_pd(2.0);
     let (bx, by, bz) = (
@@ -304,11 +327,12 @@ mod tests {
     }
 
     /// A wandering 301-segment polyline (a tail after the groups of eight) and points
-    /// near and far, some on vertices and segment midpoints (the careful lanes).
+    /// near and far, some on vertices and segment midpoints (the careful lanes); the wire
+    /// radius is 1 mm.
     fn wire_and_points() -> (Vec<Vec3>, Soa, Vec<[Vec3; 8]>) {
         let mut rng = TestLcg(4242);
         let v = rng.wandering(301);
-        let soa = Soa::new(&v);
+        let soa = Soa::new(&v, 1e-3);
         let blocks = (0..150)
             .map(|trial| std::array::from_fn(|l| rng.near_and_far(&v, trial, l)))
             .collect();
@@ -323,13 +347,15 @@ mod tests {
         // Reference: Hanson & Hirshman (2002) eq. (2), 2L(Ri+Rf)/(Ri Rf ((Ri+Rf)² − L²))
         // ê × (r − a), summed segment by segment with correctly rounded sqrt and
         // division; the same careful stand-in for unsafe pairs.
+        // A pair is careful when Ri + Rf ≤ L + max(L/100, 2a): every point inside the
+        // wire (within a of the segment) is among them.
         let (v, soa, blocks) = wire_and_points();
-        let a2 = 1e-6;
+        let a = 1e-3;
         let careful = |k: usize, lane: usize| Vec3::new(k as f64, lane as f64, 1.0);
         let mut careful_pairs = 0;
         for pts in &blocks {
             // SAFETY: AVX-512F was detected above.
-            let fast = unsafe { field_oct(&soa, pts, a2, &careful) };
+            let fast = unsafe { field_oct(&soa, pts, &careful) };
             for (lane, p) in pts.iter().enumerate() {
                 let (mut sum, mut gross) = (Vec3::zeros(), 0.0);
                 for k in 0..soa.segments() {
@@ -338,7 +364,7 @@ mod tests {
                     let l = (v[k + 1] - v[k]).norm();
                     let c = ((v[k + 1] - v[k]) / l).cross(&d_i);
                     let (s, u) = (ri + rf, ri + rf - l);
-                    let term = if c.norm_squared() >= a2 && u > 0.01 * l {
+                    let term = if s > l + (0.01 * l).max(2.0 * a) {
                         c * (2.0 * l * s / (ri * rf * u * (s + l)))
                     } else {
                         careful_pairs += 1;

@@ -28,12 +28,36 @@ pub(crate) struct Soa {
     ey: Vec<f64>,
     ez: Vec<f64>,
     len: Vec<f64>,
+    /// Segment vectors b − a (m).
+    lx: Vec<f64>,
+    ly: Vec<f64>,
+    lz: Vec<f64>,
+    /// L + max(L/100, 2a) per segment (m): the eight-lane field's safe Ri + Rf.
+    reach: Vec<f64>,
+    /// The wire radius a the reach was made for (m).
+    wire_radius: f64,
+}
+
+/// The per-segment arrays of the eight-lane field kernel, all in metres.
+#[cfg_attr(not(target_arch = "x86_64"), allow(dead_code))]
+pub(crate) struct FieldArrays<'a> {
+    /// Segment vectors b − a: x, y and z.
+    pub(crate) lx: &'a [f64],
+    pub(crate) ly: &'a [f64],
+    pub(crate) lz: &'a [f64],
+    /// Segment lengths L.
+    pub(crate) len: &'a [f64],
+    /// L + max(L/100, 2a): beyond this Ri + Rf the closed form is safe.
+    pub(crate) reach: &'a [f64],
 }
 
 impl Soa {
-    /// Lays out `vertices` (m).
-    pub(crate) fn new(vertices: &[Vec3]) -> Self {
-        let mut s = Soa::default();
+    /// Lays out `vertices` (m) of a wire of radius `wire_radius` (m).
+    pub(crate) fn new(vertices: &[Vec3], wire_radius: f64) -> Self {
+        let mut s = Soa {
+            wire_radius,
+            ..Soa::default()
+        };
         for v in vertices {
             s.x.push(v.x);
             s.y.push(v.y);
@@ -47,8 +71,30 @@ impl Soa {
             s.ey.push(e.y);
             s.ez.push(e.z);
             s.len.push(l);
+            s.lx.push(d.x);
+            s.ly.push(d.y);
+            s.lz.push(d.z);
+            s.reach.push(l + (0.01 * l).max(2.0 * wire_radius));
         }
         s
+    }
+
+    /// The wire radius (m) the layout was made for.
+    #[cfg_attr(not(target_arch = "x86_64"), allow(dead_code))]
+    pub(crate) fn wire_radius(&self) -> f64 {
+        self.wire_radius
+    }
+
+    /// Each segment's vector b − a, length and reach L + max(L/100, 2a) (m).
+    #[cfg_attr(not(target_arch = "x86_64"), allow(dead_code))]
+    pub(crate) fn field_arrays(&self) -> FieldArrays<'_> {
+        FieldArrays {
+            lx: &self.lx,
+            ly: &self.ly,
+            lz: &self.lz,
+            len: &self.len,
+            reach: &self.reach,
+        }
     }
 
     /// Number of segments laid out.
@@ -693,7 +739,7 @@ mod tests {
             // on segment extensions (the careful lanes).
             let mut rng = crate::field::TestLcg(12345);
             let v = rng.wandering(300);
-            let soa = Soa::new(&v);
+            let soa = Soa::new(&v, 1e-3);
             let a2 = 1e-6;
             let careful = |k: usize, lane: usize| Vec3::new(k as f64, lane as f64, 1.0);
             for trial in 0..200 {
@@ -722,7 +768,7 @@ mod tests {
             let mut rng = crate::field::TestLcg(777);
             let v = rng.wandering(301);
             let mut next = || rng.next();
-            let soa = Soa::new(&v);
+            let soa = Soa::new(&v, 1e-3);
             let radius = 1e-3;
             let careful = |k: usize, ri: f64, rf: f64| (k as f64) + ri * 3.0 - rf;
             let mut dist = Vec::new();

@@ -37,7 +37,7 @@ pub struct Polyline {
 impl Polyline {
     /// A path through `vertices` (m) with one ampere per ampere and the given radius (m).
     pub fn new(vertices: Vec<Vec3>, wire_radius: f64) -> Self {
-        let soa = Soa::new(&vertices);
+        let soa = Soa::new(&vertices, wire_radius);
         Polyline {
             vertices,
             soa,
@@ -105,14 +105,23 @@ impl Polyline {
         }
     }
 
+    /// Whether the 512-bit field kernel may run: the CPU has AVX-512F and the layout
+    /// matches `vertices` and `wire_radius` (its careful reach depends on the radius).
+    #[cfg(target_arch = "x86_64")]
+    fn oct_ready(&self) -> bool {
+        super::avx512::available()
+            && self.soa.segments() == self.segment_count()
+            && self.soa.wire_radius() == self.wire_radius
+    }
+
     /// B per ampere (T/A) at eight points (m) by the 512-bit kernel. Call only when
-    /// [`super::avx512::available`] and the layout matches `vertices`.
+    /// [`Polyline::oct_ready`].
     #[cfg(target_arch = "x86_64")]
     fn b_oct(&self, pts: &[Vec3; 8]) -> [Vec3; 8] {
         let a2 = self.wire_radius * self.wire_radius;
         let careful = self.careful_b(pts, a2);
         // SAFETY: the callers checked that the CPU has AVX-512F.
-        let b = unsafe { super::avx512::field_oct(&self.soa, pts, a2, &careful) };
+        let b = unsafe { super::avx512::field_oct(&self.soa, pts, &careful) };
         b.map(|b| b * (MU0_OVER_4PI * self.weight))
     }
 }
@@ -150,7 +159,7 @@ impl FieldSource for Polyline {
             return pts.map(|p| self.b_per_amp(&p));
         }
         #[cfg(target_arch = "x86_64")]
-        if super::avx512::available() {
+        if self.oct_ready() {
             // The eight-lane path, so that a point's value is the same whichever
             // block size reached it.
             let b = self.b_oct(&super::padded_block(pts));
@@ -163,7 +172,7 @@ impl FieldSource for Polyline {
 
     fn b_many(&self, pts: &[Vec3]) -> Vec<Vec3> {
         #[cfg(target_arch = "x86_64")]
-        if super::avx512::available() && self.soa.segments() == self.segment_count() {
+        if self.oct_ready() {
             return super::in_blocks::<8>(pts, |b| self.b_oct(b));
         }
         super::in_blocks::<4>(pts, |b| self.b_block(b))

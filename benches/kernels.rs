@@ -18,6 +18,8 @@ use criterion::{Criterion, Throughput, criterion_group, criterion_main};
 use std::hint::black_box;
 use strayflux::Scene;
 use strayflux::field::{FieldSource, Polyline, Vec3, b_at_points};
+use strayflux::model::SolverOptions;
+use strayflux::run::Solver;
 
 /// A closed, wavy 2000-segment polygon of about 20 mm radius in the xy plane.
 fn wavy_polygon(n: usize) -> Vec<Vec3> {
@@ -206,19 +208,26 @@ fn sweep(c: &mut Criterion) {
     g.bench_function("1000steps-2000seg", |b| {
         b.iter_batched(
             sweep_scene,
-            |scene| black_box(strayflux::sweep::run(&scene, &scene.sweeps[0], &|| {}).ok()),
+            |scene| {
+                let solver = Solver::for_scene(&scene);
+                black_box(
+                    strayflux::run::sweep::run(&scene, &solver, &scene.sweeps[0], &|| {}).ok(),
+                )
+            },
             criterion::BatchSize::LargeInput,
         )
     });
     // The same with `--exact` (direct sums at every step).
     g.bench_function("1000steps-2000seg-exact", |b| {
         b.iter_batched(
-            || {
-                let mut s = sweep_scene();
-                s.exact = true;
-                s
+            sweep_scene,
+            |scene| {
+                let options = SolverOptions::for_scene(&scene).exact_if(true);
+                let solver = Solver::new(&scene, options);
+                black_box(
+                    strayflux::run::sweep::run(&scene, &solver, &scene.sweeps[0], &|| {}).ok(),
+                )
             },
-            |scene| black_box(strayflux::sweep::run(&scene, &scene.sweeps[0], &|| {}).ok()),
             criterion::BatchSize::LargeInput,
         )
     });
@@ -234,13 +243,22 @@ fn shielded(c: &mut Criterion) {
     let scene = Scene::parse(path, &text).expect("demo scene is valid");
     let fine = Scene::parse(path, &text.replace("tolerance = 1e-5", "tolerance = 1e-6"))
         .expect("demo scene is valid");
+    let (solver, fine_solver) = (Solver::for_scene(&scene), Solver::for_scene(&fine));
     let mut g = c.benchmark_group("shielded");
     g.sample_size(10);
     g.bench_function("couple-demo", |b| {
-        b.iter(|| black_box(strayflux::coupling::couple_victim(&scene, &scene.victims[0]).ok()))
+        b.iter(|| {
+            black_box(
+                strayflux::run::couple::couple_victim(&scene, &solver, &scene.victims[0]).ok(),
+            )
+        })
     });
     g.bench_function("couple-demo-tol1e-6", |b| {
-        b.iter(|| black_box(strayflux::coupling::couple_victim(&fine, &fine.victims[0]).ok()))
+        b.iter(|| {
+            black_box(
+                strayflux::run::couple::couple_victim(&fine, &fine_solver, &fine.victims[0]).ok(),
+            )
+        })
     });
     g.finish();
 }

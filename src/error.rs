@@ -1,4 +1,5 @@
-//! Errors: bad input (exit status 2) and everything else (exit status 1).
+//! Errors: bad input and placements the models cannot solve (exit status 2), and
+//! everything else (exit status 1). [`Error::exit_code`] is the one place that maps them to statuses.
 
 use std::fmt;
 
@@ -66,15 +67,46 @@ pub enum Error {
     Input(InputError),
     /// A bad command-line argument that has no file location: exit status 2.
     Usage(String),
+    /// A placement the scene asks for that the models cannot solve (a sheet cutting a
+    /// victim at some sweep step): exit status 2, since the fix is in the scene.
+    Solve(SolveError),
     /// Anything else (I/O, a result the solver could not reach): exit status 1.
     Run(String),
+}
+
+/// Why a solve could not finish. The scene was valid, but this placement (often one
+/// step of a sweep or one tilt of an orientation search) is outside what the shield
+/// model can compute.
+#[derive(Clone, Debug, PartialEq)]
+pub enum SolveError {
+    /// A source or victim straddles, touches or lies inside a shield sheet, or the
+    /// sheet's spectral plan cannot meet the tolerance for this placement.
+    Shield(String),
+    /// A sweep's design option (`compare`) cannot be fitted alone.
+    Alternative(String),
+}
+
+impl fmt::Display for SolveError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            SolveError::Shield(m) | SolveError::Alternative(m) => f.write_str(m),
+        }
+    }
+}
+
+impl std::error::Error for SolveError {}
+
+impl From<SolveError> for Error {
+    fn from(e: SolveError) -> Self {
+        Error::Solve(e)
+    }
 }
 
 impl Error {
     /// The process exit status for this error.
     pub fn exit_code(&self) -> i32 {
         match self {
-            Error::Input(_) | Error::Usage(_) => 2,
+            Error::Input(_) | Error::Usage(_) | Error::Solve(_) => 2,
             Error::Run(_) => 1,
         }
     }
@@ -84,6 +116,7 @@ impl fmt::Display for Error {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
             Error::Input(e) => e.fmt(f),
+            Error::Solve(e) => e.fmt(f),
             Error::Usage(m) | Error::Run(m) => f.write_str(m),
         }
     }

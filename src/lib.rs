@@ -22,24 +22,32 @@
 
 #![deny(missing_docs)]
 
+// Layers, lowest first; a module imports only from layers below its own (see
+// DEVELOPERS.md for the graph):
+//   error, units, quadrature, spectrum, waveform   foundations
+//   field, inductance                              Biot–Savart kernels, far-field series
+//   geometry                                       frames, edges, shapes -> conductors
+//   model                                          the validated scene (SI), solver options
+//   scene                                          TOML -> model, located input errors
+//   shield, coupling                               shield physics, flux, M, EMF
+//   run                                            couple, probe, sweep, orientation, map
+//   output                                         text, JSON, CSV, SVG, VTK
+//   app                                            one file per command
 pub mod app;
 pub mod coupling;
 pub mod error;
 pub mod field;
-pub mod fieldmap;
 pub mod geometry;
 pub mod inductance;
-pub mod orientation;
+pub mod model;
 pub mod output;
-pub mod points_csv;
-pub mod probe;
 pub mod quadrature;
+pub mod run;
 pub mod scene;
 pub mod shield;
 pub mod spectrum;
-pub mod sweep;
 pub mod units;
 pub mod waveform;
 
-pub use error::{Error, InputError};
-pub use scene::Scene;
+pub use error::{Error, InputError, SolveError};
+pub use model::Scene;

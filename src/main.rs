@@ -142,12 +142,12 @@ fn run_map(
     exact: bool,
 ) -> Result<app::Outcome, strayflux::Error> {
     let limit = match max_memory {
-        Some(text) => strayflux::fieldmap::parse_memory(text).ok_or_else(|| {
+        Some(text) => strayflux::run::map::parse_memory(text).ok_or_else(|| {
             strayflux::Error::Usage(format!(
                 "--max-memory \"{text}\": expected a size such as \"4 GiB\" or \"500 MB\""
             ))
         })?,
-        None => strayflux::fieldmap::default_memory_limit(),
+        None => strayflux::run::map::default_memory_limit(),
     };
     let bar = progress_bar();
     let result = app::map(scene, only, out, limit, exact, &|done, total| {

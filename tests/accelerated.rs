@@ -316,7 +316,7 @@ fn sweep_flux_from_the_series_is_within_the_tolerance_of_the_direct_flux() {
          vertices = [[0, 0, 0], [0.01, 0, 0], [0.012, 0.006, 0], [0.002, 0.009, 0]]\n",
     );
     let source = &scene.sources[0];
-    let far = source.far_field().unwrap();
+    let far = &strayflux::field::FarField::new(&source.conductors).unwrap();
     let sphere = source.conductors.bounding_sphere();
     let mut rng = Lcg(0x5eed_0005);
     let (mut used, mut tried) = (0, 0);

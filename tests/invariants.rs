@@ -17,9 +17,11 @@ use common::{Lcg, MU0, basis, rotate};
 use num_complex::Complex64;
 use std::f64::consts::{PI, TAU};
 use strayflux::Scene;
-use strayflux::coupling::{PairModel, VictimReport, couple_victim, flux_per_amp};
+use strayflux::coupling::flux_per_amp;
 use strayflux::field::{Conductors, FieldSource, Vec3};
-use strayflux::probe::probe;
+use strayflux::run::Solver;
+use strayflux::run::couple::{VictimReport, couple_victim};
+use strayflux::run::probe::probe;
 
 /// The scene's default relative tolerance (SPEC.md `[solver]`; `DEFAULT_TOLERANCE`).
 const TOL: f64 = 1e-6;
@@ -530,7 +532,8 @@ fn parse(text: &str) -> Scene {
 }
 
 fn couple(scene: &Scene, v: usize) -> VictimReport {
-    couple_victim(scene, &scene.victims[v]).unwrap_or_else(|e| panic!("{e}"))
+    couple_victim(scene, &Solver::for_scene(scene), &scene.victims[v])
+        .unwrap_or_else(|e| panic!("{e}"))
 }
 
 /// |a − b| over a complex 3-vector.
@@ -597,7 +600,10 @@ fn emf_and_field_scale_linearly_with_the_current_phasor() {
             worst_emf = worst_emf.max(e);
         }
         let pts = layout.probe_points(&mut rng, &a, 8);
-        let (pa, pb) = (probe(&a, &pts).unwrap(), probe(&b, &pts).unwrap());
+        let (pa, pb) = (
+            probe(&a, &Solver::for_scene(&a), &pts).unwrap(),
+            probe(&b, &Solver::for_scene(&b), &pts).unwrap(),
+        );
         for (qa, qb) in pa.iter().zip(&pb) {
             for (la, lb) in qa.lines.iter().zip(&qb.lines) {
                 let want = la.b.map(|c| c * s);
@@ -679,13 +685,13 @@ fn sources_together_couple_as_the_phasor_sum_of_each_alone() {
         }
         let pts = layout.probe_points(&mut rng, &both, 8);
         let (p, pa, pb) = (
-            probe(&both, &pts).unwrap(),
-            probe(&sa, &pts).unwrap(),
-            probe(&sb, &pts).unwrap(),
+            probe(&both, &Solver::for_scene(&both), &pts).unwrap(),
+            probe(&sa, &Solver::for_scene(&sa), &pts).unwrap(),
+            probe(&sb, &Solver::for_scene(&sb), &pts).unwrap(),
         );
         for i in 0..pts.len() {
             for line in &p[i].lines {
-                let part = |pp: &strayflux::probe::ProbePoint| {
+                let part = |pp: &strayflux::run::probe::ProbePoint| {
                     pp.lines
                         .iter()
                         .find(|x| (x.frequency - line.frequency).abs() < 1e-6 * line.frequency)
@@ -926,7 +932,9 @@ fn shielded_mutual_inductance_is_reciprocal() {
             pair_scene(&b, &a, Some(&sheet), TOL),
         );
         let model = |s: &Scene| {
-            PairModel::new(s, &s.sources[0], &s.victims[0]).unwrap_or_else(|e| panic!("{e}"))
+            Solver::for_scene(s)
+                .pair_model(s, 0, &s.victims[0])
+                .unwrap_or_else(|e| panic!("{e}"))
         };
         let (m12, m21) = (model(&s1).shielded_flux(f), model(&s2).shielded_flux(f));
         let gross = flux(&s1, 0, 0).1.max(flux(&s2, 0, 0).1);
@@ -1015,8 +1023,11 @@ fn coupling_is_invariant_under_a_rigid_motion_of_the_whole_scene() {
         }
         let pts = layout.probe_points(&mut rng, &a, 10);
         let moved_pts: Vec<Vec3> = pts.iter().map(|p| motion.point(p)).collect();
-        let (pa, pb) = (probe(&a, &pts).unwrap(), probe(&b, &moved_pts).unwrap());
-        let pf = probe(&free, &pts).unwrap();
+        let (pa, pb) = (
+            probe(&a, &Solver::for_scene(&a), &pts).unwrap(),
+            probe(&b, &Solver::for_scene(&b), &moved_pts).unwrap(),
+        );
+        let pf = probe(&free, &Solver::for_scene(&free), &pts).unwrap();
         for ((qa, qb), qf) in pa.iter().zip(&pb).zip(&pf) {
             for ((la, lb), lf) in qa.lines.iter().zip(&qb.lines).zip(&qf.lines) {
                 let re = Vec3::new(la.b[0].re, la.b[1].re, la.b[2].re);
@@ -1554,7 +1565,7 @@ fn fields_are_finite_at_every_singular_point() {
             }
             count += 1;
         }
-        for pp in probe(&scene, &pts).unwrap() {
+        for pp in probe(&scene, &Solver::for_scene(&scene), &pts).unwrap() {
             for l in &pp.lines {
                 assert!(
                     l.b.iter().all(|c| c.re.is_finite() && c.im.is_finite()),
@@ -1775,7 +1786,8 @@ fn non_magnetic_sheet_never_raises_the_coupling_of_facing_loops() {
     for case in 0..40 {
         let (a, b, sheet) = facing_pair(&mut rng);
         let scene = pair_scene(&a, &b, Some(&sheet), TOL);
-        let model = PairModel::new(&scene, &scene.sources[0], &scene.victims[0])
+        let model = Solver::for_scene(&scene)
+            .pair_model(&scene, 0, &scene.victims[0])
             .unwrap_or_else(|e| panic!("{e}"));
         let free = model.flux.abs();
         for k in 0..6 {

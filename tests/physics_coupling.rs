@@ -13,10 +13,12 @@ use common::{
 use num_complex::Complex64;
 use std::f64::consts::{PI, SQRT_2, TAU};
 use strayflux::Scene;
-use strayflux::coupling::{couple_victim, flux_per_amp};
+use strayflux::coupling::flux_per_amp;
 use strayflux::field::Vec3;
 use strayflux::geometry::{Edge, Frame, circle_source, polygon_source, rectangle_corners};
-use strayflux::probe::probe;
+use strayflux::run::Solver;
+use strayflux::run::couple::couple_victim;
+use strayflux::run::probe::probe;
 
 /// Default scene tolerance and wire radius (SPEC.md `[solver]` defaults).
 const TOL: f64 = 1e-6;
@@ -325,7 +327,7 @@ fn induced_emf_equals_minus_j_omega_m_i_for_a_sine_line() {
         d,
         "axis = [0, 0, 1]",
     );
-    let rep = couple_victim(&scene, &scene.victims[0]).unwrap();
+    let rep = couple_victim(&scene, &Solver::for_scene(&scene), &scene.victims[0]).unwrap();
     let line = &rep.sources[0].lines[0];
     let want = faraday(m, f, current);
     let e_m = rel(rep.sources[0].mutual_inductance, m);
@@ -352,7 +354,7 @@ fn induced_emf_equals_minus_j_omega_m_i_for_a_sine_line() {
         d,
         "axis = [0, 0, -1]",
     );
-    let rep = couple_victim(&flipped, &flipped.victims[0]).unwrap();
+    let rep = couple_victim(&flipped, &Solver::for_scene(&flipped), &flipped.victims[0]).unwrap();
     let want = faraday(-m, f, Complex64::new(2.0, 0.0));
     let e = (rep.sources[0].lines[0].emf - want).norm() / want.norm();
     eprintln!("EMF flipped victim (rms-specified current): rel {e:.2e}");
@@ -387,7 +389,7 @@ fn emf_of_two_sources_at_one_frequency_adds_as_phasors() {
             zv,
             "",
         );
-        let rep = couple_victim(&scene, &scene.victims[0]).unwrap();
+        let rep = couple_victim(&scene, &Solver::for_scene(&scene), &scene.victims[0]).unwrap();
         let f = 25e3;
         let ea = faraday(ma, f, Complex64::new(1.0, 0.0));
         let eb = faraday(
@@ -443,7 +445,7 @@ fn emf_of_lines_at_different_frequencies_adds_root_sum_square() {
         zv,
         "",
     );
-    let rep = couple_victim(&scene, &scene.victims[0]).unwrap();
+    let rep = couple_victim(&scene, &Solver::for_scene(&scene), &scene.victims[0]).unwrap();
     let expected = [
         (10e3, faraday(ma, 10e3, Complex64::new(1.0, 0.0))),
         (
@@ -479,7 +481,7 @@ fn source_and_victim_turns_multiply_mutual_inductance() {
          position = [0, 0, {d:e}]\n"
     );
     let scene = Scene::parse("turns.toml", &t).unwrap();
-    let rep = couple_victim(&scene, &scene.victims[0]).unwrap();
+    let rep = couple_victim(&scene, &Solver::for_scene(&scene), &scene.victims[0]).unwrap();
     let e = rel(
         rep.sources[0].mutual_inductance,
         12.0 * maxwell_coaxial(a, b, d),
@@ -522,7 +524,7 @@ fn field_and_emf_superpose_over_sources_and_scale_linearly_with_current() {
             )
         })
         .collect();
-    let got = probe(&scene, &pts).unwrap();
+    let got = probe(&scene, &Solver::for_scene(&scene), &pts).unwrap();
     let mut worst: f64 = 0.0;
     for (p, pp) in pts.iter().zip(&got) {
         assert_eq!(pp.lines.len(), 1);
@@ -540,7 +542,7 @@ fn field_and_emf_superpose_over_sources_and_scale_linearly_with_current() {
 
     let s = 7.3;
     let scaled = build(s);
-    let got_s = probe(&scaled, &pts).unwrap();
+    let got_s = probe(&scaled, &Solver::for_scene(&scaled), &pts).unwrap();
     let mut lin: f64 = 0.0;
     for (g, gs) in got.iter().zip(&got_s) {
         for k in 0..3 {
@@ -548,8 +550,8 @@ fn field_and_emf_superpose_over_sources_and_scale_linearly_with_current() {
             lin = lin.max((gs.lines[0].b[k] - want).norm() / want.norm().max(1e-300));
         }
     }
-    let r1 = couple_victim(&scene, &scene.victims[0]).unwrap();
-    let rs = couple_victim(&scaled, &scaled.victims[0]).unwrap();
+    let r1 = couple_victim(&scene, &Solver::for_scene(&scene), &scene.victims[0]).unwrap();
+    let rs = couple_victim(&scaled, &Solver::for_scene(&scaled), &scaled.victims[0]).unwrap();
     lin = lin.max(rel(rs.total_rms, s * r1.total_rms));
     let want_emf = faraday(maxwell_coaxial(0.020, 0.015, 0.010), 5e3, ia)
         + faraday(maxwell_coaxial(0.012, 0.015, 0.015), 5e3, ib);
@@ -630,8 +632,8 @@ fn mutual_inductance_and_field_are_invariant_under_rigid_motion_of_the_scene() {
     let mut worst_m: f64 = 0.0;
     for (v1, v2) in s1.victims.iter().zip(&s2.victims) {
         let (r1, r2) = (
-            couple_victim(&s1, v1).unwrap(),
-            couple_victim(&s2, v2).unwrap(),
+            couple_victim(&s1, &Solver::for_scene(&s1), v1).unwrap(),
+            couple_victim(&s2, &Solver::for_scene(&s2), v2).unwrap(),
         );
         for (c1, c2) in r1.sources.iter().zip(&r2.sources) {
             let e = rel(c2.mutual_inductance, c1.mutual_inductance);
@@ -658,10 +660,13 @@ fn mutual_inductance_and_field_are_invariant_under_rigid_motion_of_the_scene() {
         })
         .collect();
     let moved: Vec<Vec3> = pts.iter().map(place).collect();
-    let (b1, b2) = (probe(&s1, &pts).unwrap(), probe(&s2, &moved).unwrap());
+    let (b1, b2) = (
+        probe(&s1, &Solver::for_scene(&s1), &pts).unwrap(),
+        probe(&s2, &Solver::for_scene(&s2), &moved).unwrap(),
+    );
     let mut worst_b: f64 = 0.0;
     for (p1, p2) in b1.iter().zip(&b2) {
-        let re = |pp: &strayflux::probe::ProbePoint| {
+        let re = |pp: &strayflux::run::probe::ProbePoint| {
             Vec3::new(
                 pp.lines[0].b[0].re,
                 pp.lines[0].b[1].re,

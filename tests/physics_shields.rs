@@ -13,12 +13,15 @@ use common::{MU0, bessel_j0, bessel_j1, dipole_b, gauss_legendre, maxwell_coaxia
 use num_complex::Complex64;
 use std::f64::consts::{PI, TAU};
 use strayflux::Scene;
-use strayflux::coupling::{PairModel, couple_victim};
+use strayflux::coupling::PairModel;
 use strayflux::field::Vec3;
-use strayflux::probe::probe;
+use strayflux::model::Layer;
+use strayflux::model::material::{Material, built_in};
+use strayflux::run::Solver;
+use strayflux::run::couple::couple_victim;
+use strayflux::run::probe::probe;
 use strayflux::shield::enclosure::ln_shell_factor;
-use strayflux::shield::layers::{Layer, response, thin_sheet_transmission};
-use strayflux::shield::material::{Material, built_in};
+use strayflux::shield::layers::{response, thin_sheet_transmission};
 
 // ---------------------------------------------------------------------------------
 // Independent reference: one slab in closed form.
@@ -217,7 +220,9 @@ fn parse(text: &str) -> Scene {
 
 /// The pair model of the scene's only source and victim.
 fn pair(scene: &Scene) -> PairModel {
-    PairModel::new(scene, &scene.sources[0], &scene.victims[0]).expect("pair model")
+    Solver::for_scene(scene)
+        .pair_model(scene, 0, &scene.victims[0])
+        .expect("pair model")
 }
 
 /// (σ, μr) of a built-in material.
@@ -632,7 +637,7 @@ fn loops_through_a_sheet_match_the_hankel_integral() {
         );
         let scene = parse(&text);
         let model = pair(&scene);
-        let report = couple_victim(&scene, &scene.victims[0]).unwrap();
+        let report = couple_victim(&scene, &Solver::for_scene(&scene), &scene.victims[0]).unwrap();
         let free = maxwell_coaxial(a, b, h1 + t + h2);
         for (i, &f) in FREQS.iter().enumerate() {
             let want = integrate(&nodes, |k| slab(&s, k, TAU * f).1);
@@ -705,7 +710,7 @@ fn loops_beside_a_sheet_match_the_hankel_integral_of_the_reflection() {
         );
         let scene = parse(&text);
         let model = pair(&scene);
-        let report = couple_victim(&scene, &scene.victims[0]).unwrap();
+        let report = couple_victim(&scene, &Solver::for_scene(&scene), &scene.victims[0]).unwrap();
         for (i, &f) in FREQS.iter().enumerate() {
             let scat = integrate(&nodes, |k| slab(&s, k, TAU * f).0);
             let want = scat + free;
@@ -1110,7 +1115,7 @@ fn dipole_field_beyond_a_sheet_matches_the_hankel_integral() {
     for (name, material, t) in &cases {
         let scene = parse(&format!("{src}{}", sheet_toml(material, *t, 0.0)));
         let points: Vec<Vec3> = rhos.iter().map(|&r| Vec3::new(r, 0.0, t + h2)).collect();
-        let got = probe(&scene, &points).expect("probe");
+        let got = probe(&scene, &Solver::for_scene(&scene), &points).expect("probe");
         let s = match *name {
             "transparent" => Slab {
                 sigma: 0.0,
@@ -1219,7 +1224,7 @@ fn tilted_dipole_beside_image_planes_matches_the_image_dipoles() {
     let mut worst: f64 = 0.0;
     for (name, material, t, kappa, image) in &cases {
         let scene = parse(&format!("{src}{}", sheet_toml(material, *t, 0.0)));
-        let got = probe(&scene, &points).expect("probe");
+        let got = probe(&scene, &Solver::for_scene(&scene), &points).expect("probe");
         for (p, g) in points.iter().zip(&got) {
             let want = dipole_b(&m, &(p - Vec3::new(0.0, 0.0, -h)))
                 + dipole_b(image, &(p - Vec3::new(0.0, 0.0, h))) * *kappa;
@@ -1400,7 +1405,7 @@ fn extra_thickness_adds_schelkunoff_absorption() {
     let (h1, h2) = (0.01, 0.01);
     let emf = |t: f64| {
         let s = through_scene("\"aluminium\"", t, h1, h2, f);
-        let r = couple_victim(&s, &s.victims[0]).unwrap();
+        let r = couple_victim(&s, &Solver::for_scene(&s), &s.victims[0]).unwrap();
         (
             r.sources[0].lines[0].emf.norm(),
             r.sources[0].lines[0].shielding_db,
@@ -1487,7 +1492,11 @@ fn common_practice_sheet_shielding_levels() {
     // of copper (permeability, not conductivity, shields at low frequency).
     let se = |material: &str, t: f64, f: f64| {
         let s = through_scene(material, t, 0.005, 0.005, f);
-        couple_victim(&s, &s.victims[0]).unwrap().sources[0].lines[0].shielding_db
+        couple_victim(&s, &Solver::for_scene(&s), &s.victims[0])
+            .unwrap()
+            .sources[0]
+            .lines[0]
+            .shielding_db
     };
     let cu_low = se("\"copper\"", 35e-6, 100.0);
     let cu_high = se("\"copper\"", 35e-6, 1e5);
@@ -1538,8 +1547,8 @@ fn boxed_scene(enclosure: Option<(&str, f64, f64)>, f: f64) -> Scene {
 fn shell_factor(material: &str, t: f64, edge: f64, f: f64) -> (Complex64, f64) {
     let free = boxed_scene(None, f);
     let boxed = boxed_scene(Some((material, t, edge)), f);
-    let e0 = couple_victim(&free, &free.victims[0]).unwrap();
-    let e1 = couple_victim(&boxed, &boxed.victims[0]).unwrap();
+    let e0 = couple_victim(&free, &Solver::for_scene(&free), &free.victims[0]).unwrap();
+    let e1 = couple_victim(&boxed, &Solver::for_scene(&boxed), &boxed.victims[0]).unwrap();
     // The reported mutual inductance stays the free-space one.
     assert!(
         rel(

@@ -20,10 +20,11 @@ use std::path::{Path, PathBuf};
 
 use strayflux::Scene;
 use strayflux::field::Vec3;
-use strayflux::orientation::{search, small_loop_matrix};
-use strayflux::scene::Victim;
+use strayflux::model::Victim;
+use strayflux::run::Solver;
+use strayflux::run::orientation::{search, small_loop_matrix};
+use strayflux::run::sweep::{run, victim_emf};
 use strayflux::spectrum::Line;
-use strayflux::sweep::{run, victim_emf};
 mod cli_support;
 use cli_support::{run as run_bin, stdout_json as ok_json};
 
@@ -116,7 +117,14 @@ fn grid_worst(
 ) -> (f64, Vec3) {
     normals
         .par_iter()
-        .map(|u| (victim_emf(scene, &victim.facing(u), lines).unwrap().1, *u))
+        .map(|u| {
+            (
+                victim_emf(scene, &Solver::for_scene(scene), &victim.facing(u), lines)
+                    .unwrap()
+                    .total_rms,
+                *u,
+            )
+        })
         .reduce(
             || (f64::NEG_INFINITY, Vec3::zeros()),
             |a, b| if b.0 > a.0 { b } else { a },
@@ -129,7 +137,7 @@ fn grid_worst(
 /// any other shape turned by the smallest rotation onto n or onto −n ends up turned
 /// differently in its own plane, so it needs the whole sphere.
 fn normals_for(victim: &Victim) -> Vec<Vec3> {
-    if victim.kind == "loop" {
+    if victim.kind == strayflux::model::VictimKind::Loop {
         fibonacci_sphere(GRID_LOOP)
             .into_iter()
             .filter(|u| u.z >= 0.0)
@@ -361,7 +369,7 @@ steps = 11
 scale = "log"
 "#;
     let scene = Scene::parse("far.toml", text).expect("scene parses");
-    let result = run(&scene, &scene.sweeps[0], &|| {}).unwrap();
+    let result = run(&scene, &Solver::for_scene(&scene), &scene.sweeps[0], &|| {}).unwrap();
     let u = Vec3::new(1.0, 2.0, 2.0) / 3.0;
     let m = Vec3::new(0.0, 1.0, 1.0).normalize() * (w * h); // moment per ampere, A·m²
     let n = Vec3::new(1.0, 0.0, 2.0).normalize();
@@ -494,11 +502,18 @@ fn worst_orientation_search_finds_the_grid_maximum_for_small_and_large_victims()
         let (grid_best, grid_n) = grid_worst(&scene, victim, &lines, &normals_for(victim));
         let q = small_loop_matrix(&scene, victim, &phasors(&lines));
         let found = search(victim, &q, true, |v| {
-            victim_emf(&scene, v, &lines).unwrap().1
+            victim_emf(&scene, &Solver::for_scene(&scene), v, &lines)
+                .unwrap()
+                .total_rms
         });
-        let again = victim_emf(&scene, &victim.facing(&found.normal), &lines)
-            .unwrap()
-            .1;
+        let again = victim_emf(
+            &scene,
+            &Solver::for_scene(&scene),
+            &victim.facing(&found.normal),
+            &lines,
+        )
+        .unwrap()
+        .total_rms;
         let shortfall = db(grid_best / found.total_rms);
         eprintln!(
             "{}: grid best {grid_best:.6e} V at {:.4?}; search {:.6e} V at {:.4?} \
@@ -526,7 +541,13 @@ fn worst_orientation_search_finds_the_grid_maximum_for_small_and_large_victims()
             ));
         }
         // The worst case is at least as bad as the victim as placed.
-        assert!(found.total_rms >= victim_emf(&scene, victim, &lines).unwrap().1 * (1.0 - 1e-12));
+        assert!(
+            found.total_rms
+                >= victim_emf(&scene, &Solver::for_scene(&scene), victim, &lines)
+                    .unwrap()
+                    .total_rms
+                    * (1.0 - 1e-12)
+        );
     }
     assert!(failures.is_empty(), "{failures:#?}");
 }
@@ -537,13 +558,20 @@ fn worst_orientation_sweep_rows_match_the_grid_maximum_at_every_step() {
     let lines = scene_lines(&scene);
     let mut failures = Vec::new();
     for spec in &scene.sweeps {
-        let result = run(&scene, spec, &|| {}).unwrap();
+        let result = run(&scene, &Solver::for_scene(&scene), spec, &|| {}).unwrap();
         let base = &scene.victims[spec.victim];
         for row in &result.rows {
             let axis = row.worst_axis.expect("worst sweeps report the axis");
             let moved = base.moved(&nalgebra::Rotation3::identity(), &(Vec3::x() * row.value));
             let (grid_best, _) = grid_worst(&scene, &moved, &lines, &normals_for(&moved));
-            let at_axis = victim_emf(&scene, &moved.facing(&axis), &lines).unwrap().1;
+            let at_axis = victim_emf(
+                &scene,
+                &Solver::for_scene(&scene),
+                &moved.facing(&axis),
+                &lines,
+            )
+            .unwrap()
+            .total_rms;
             let shortfall = db(grid_best / row.total_rms);
             eprintln!(
                 "{} at {:.1} mm: row {:.6e} V, grid {grid_best:.6e} V ({shortfall:+.4} dB), \

@@ -1,7 +1,7 @@
 //! CSV tables of sweeps: one row per step.
 
-use crate::scene::sweep::Vary;
-use crate::sweep::SweepResult;
+use crate::model::Vary;
+use crate::run::sweep::SweepResult;
 use std::fmt::Write;
 
 /// Header name of the swept value's column, with its unit.

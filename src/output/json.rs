@@ -2,8 +2,8 @@
 //! contract (snake_case, unit in the name).
 
 use crate::Scene;
-use crate::coupling::VictimReport;
-use crate::probe::ProbePoint;
+use crate::run::couple::VictimReport;
+use crate::run::probe::ProbePoint;
 use serde::Serialize;
 
 #[derive(Serialize)]
@@ -38,7 +38,7 @@ pub fn check(scene: &Scene, lines_hz: &[f64]) -> String {
             .iter()
             .map(|s| CheckSource {
                 id: s.id.clone(),
-                kind: s.kind.clone(),
+                kind: s.kind.name().to_string(),
                 segments: s.conductors.segment_count(),
                 wire_length_m: s.conductors.wire_length(),
                 dipole_moment_a_m2_per_a: s.conductors.dipole_moment_per_amp().norm(),
@@ -209,9 +209,9 @@ struct SweepJsonRow {
 }
 
 /// `sweep --json`: values in `unit` (m for distance, deg for angle, Hz for frequency).
-pub fn sweeps(results: &[crate::sweep::SweepResult]) -> String {
+pub fn sweeps(results: &[crate::run::sweep::SweepResult]) -> String {
+    use crate::model::Vary;
     use crate::output::csv::value_in_unit;
-    use crate::scene::sweep::Vary;
     let sweeps = results
         .iter()
         .map(|r| {

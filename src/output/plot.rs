@@ -2,7 +2,7 @@
 //! spectrum of a victim. Logarithmic axes are drawn as linear axes of log10(value)
 //! with their labels written back in engineering units.
 
-use crate::sweep::SweepResult;
+use crate::run::sweep::SweepResult;
 use crate::units::format_si;
 use plotters::prelude::*;
 use plotters::style::full_palette::{BLUE_700, GREY_500, ORANGE_700, RED_700};
@@ -163,7 +163,7 @@ fn err<E: std::fmt::Display>(e: E) -> PlotError {
 pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotError> {
     let spec = &result.spec;
     let (x_axis, title) = match spec.vary {
-        crate::scene::sweep::Vary::Distance(d) => (
+        crate::model::Vary::Distance(d) => (
             Axis {
                 label: format!(
                     "distance moved along [{:.3}, {:.3}, {:.3}] (mm)",
@@ -175,7 +175,7 @@ pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotEr
             },
             "distance",
         ),
-        crate::scene::sweep::Vary::Angle(a) => (
+        crate::model::Vary::Angle(a) => (
             Axis {
                 label: format!("rotation about [{:.3}, {:.3}, {:.3}] (deg)", a.x, a.y, a.z),
                 log: spec.log,
@@ -184,7 +184,7 @@ pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotEr
             },
             "angle",
         ),
-        crate::scene::sweep::Vary::Frequency => (
+        crate::model::Vary::Frequency => (
             Axis {
                 label: "fundamental frequency".into(),
                 log: spec.log,
@@ -194,7 +194,7 @@ pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotEr
             "frequency",
         ),
     };
-    let y_log = !matches!(spec.vary, crate::scene::sweep::Vary::Angle(_));
+    let y_log = !matches!(spec.vary, crate::model::Vary::Angle(_));
     let y_axis = Axis {
         label: "induced EMF, rms".into(),
         log: y_log,
@@ -306,7 +306,7 @@ pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotEr
         }
         // EMF rises with frequency and falls with distance: keep the legend off the data.
         let corner = match spec.vary {
-            crate::scene::sweep::Vary::Frequency => SeriesLabelPosition::UpperLeft,
+            crate::model::Vary::Frequency => SeriesLabelPosition::UpperLeft,
             _ => SeriesLabelPosition::UpperRight,
         };
         chart
@@ -400,7 +400,7 @@ fn draw_lines(
     for (rank, &(k, _)) in order.iter().enumerate() {
         let colour = LINE_COLOURS[rank % LINE_COLOURS.len()];
         let label = match result.rows.first().and_then(|r| r.lines.get(k)) {
-            Some(l) if !matches!(result.spec.vary, crate::scene::sweep::Vary::Frequency) => {
+            Some(l) if !matches!(result.spec.vary, crate::model::Vary::Frequency) => {
                 format!("line at {}", format_si(l.0, "Hz", 3))
             }
             _ => format!("line {}", k + 1),

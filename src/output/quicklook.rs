@@ -4,7 +4,7 @@
 
 use crate::Scene;
 use crate::field::Vec3;
-use crate::scene::map::MapSpec;
+use crate::model::MapSpec;
 use crate::units::format_si;
 use num_complex::Complex64;
 use plotters::prelude::*;

@@ -1,9 +1,9 @@
 //! Human-readable reports for the terminal.
 
 use crate::Scene;
-use crate::coupling::VictimReport;
 use crate::field::Vec3;
-use crate::probe::ProbePoint;
+use crate::run::couple::VictimReport;
+use crate::run::probe::ProbePoint;
 use crate::units::{format_area, format_si};
 use std::fmt::Write;
 
@@ -271,8 +271,12 @@ fn plural(n: f64) -> &'static str {
 }
 
 /// `sweep`: per sweep the range, the safe value and the orientation advice.
-pub fn sweeps(scene: &Scene, results: &[crate::sweep::SweepResult], written: &[String]) -> String {
-    use crate::scene::sweep::Vary;
+pub fn sweeps(
+    scene: &Scene,
+    results: &[crate::run::sweep::SweepResult],
+    written: &[String],
+) -> String {
+    use crate::model::Vary;
     let mut out = String::new();
     title(&mut out, "sweeps", scene);
     for r in results {
@@ -371,8 +375,8 @@ pub fn sweeps(scene: &Scene, results: &[crate::sweep::SweepResult], written: &[S
 
 /// `materials`: one row per material with its skin depth at each of `freqs` (Hz),
 /// then where each value comes from and the permeability caution.
-pub fn materials(list: &[crate::shield::material::Material], freqs: &[f64]) -> String {
-    use crate::shield::material::IACS;
+pub fn materials(list: &[crate::model::material::Material], freqs: &[f64]) -> String {
+    use crate::model::material::IACS;
     let mut out = String::new();
     let _ = write!(
         out,

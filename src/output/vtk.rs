@@ -8,7 +8,7 @@
 
 use crate::Scene;
 use crate::field::Vec3;
-use crate::scene::map::MapSpec;
+use crate::model::MapSpec;
 use num_complex::Complex64;
 use vtkio::model::{
     Attribute, Attributes, ByteOrder, DataSet, PolyDataPiece, Version, VertexNumbers, Vtk,

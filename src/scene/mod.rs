@@ -5,190 +5,26 @@
 //! unknown keys, and the `source` and `victim` modules build the geometry the solver trusts. Any
 //! problem stops the load with one located [`InputError`].
 
+mod common;
 mod current;
-pub mod map;
+mod map;
+pub mod points_csv;
 pub mod reader;
 mod shield;
 mod source;
-pub mod sweep;
+mod sweep;
 mod victim;
 mod windings;
 
 use crate::error::InputError;
-use crate::field::{Conductors, Vec3};
-use crate::geometry::{Edge, Frame};
-use crate::spectrum::{Line, near_field_limit};
+use crate::field::Vec3;
+use crate::geometry::Edge;
+use crate::model::{Barrier, Scene, Source, Victim};
+pub use crate::model::{DEFAULT_TOLERANCE, DEFAULT_WIRE_RADIUS};
 use crate::units::Dimension;
-use reader::{Doc, Table, did_you_mean};
+use common::Context;
+use reader::{Doc, Table};
 use std::path::Path;
-
-pub use shield::{side_of, source_points, victim_points};
-
-/// Default relative accuracy of fields, flux and M.
-pub const DEFAULT_TOLERANCE: f64 = 1e-6;
-/// Default conductor radius, m (0.1 mm).
-pub const DEFAULT_WIRE_RADIUS: f64 = 1e-4;
-
-/// A validated scene, all quantities in SI units.
-#[derive(Clone, Debug)]
-pub struct Scene {
-    /// Free-text title.
-    pub title: String,
-    /// Relative accuracy target for fields, flux and M.
-    pub tolerance: f64,
-    /// Default conductor radius, m.
-    pub wire_radius: f64,
-    /// Field sources in file order.
-    pub sources: Vec<Source>,
-    /// Victim loops in file order.
-    pub victims: Vec<Victim>,
-    /// Sweeps in file order.
-    pub sweeps: Vec<sweep::SweepSpec>,
-    /// Field maps in file order.
-    pub maps: Vec<map::MapSpec>,
-    /// Flat sheets in file order (`[[shield]]`).
-    pub shields: Vec<crate::shield::barrier::Sheet>,
-    /// The sheets combined into one stack, if there are any.
-    pub barrier: Option<crate::shield::barrier::Barrier>,
-    /// Closed boxes around victims (`[[enclosure]]`).
-    pub enclosures: Vec<crate::shield::enclosure::Enclosure>,
-    /// Warnings found while loading (results outside the model, unclosed paths).
-    pub warnings: Vec<String>,
-    /// Sum every field directly, never from a source's far-field expansion (the
-    /// command line's `--exact`; not read from the file).
-    pub exact: bool,
-}
-
-/// A source: conductors placed in the scene and the spectral lines of their current.
-#[derive(Clone, Debug)]
-pub struct Source {
-    /// Unique id.
-    pub id: String,
-    /// Kind as written (`loop`, `polygon`, ...).
-    pub kind: String,
-    /// Placement.
-    pub frame: Frame,
-    /// Filaments and dipoles, per ampere of the source current.
-    pub conductors: Conductors,
-    /// Current spectrum, peak phasors, ascending frequency.
-    pub lines: Vec<Line>,
-    /// With `calibrate`: the point (m) and the rms |B| (T) the current was scaled to.
-    pub calibration: Option<(Vec3, f64)>,
-    /// The conductors' far-field expansion, built on first request by
-    /// [`Source::far_field`] and shared by clones (the conductors never change after
-    /// loading).
-    pub far: std::sync::Arc<std::sync::OnceLock<Option<crate::field::FarField>>>,
-    /// The conductors' bounding sphere (centre m, radius m), computed on first request
-    /// by [`Source::bounding_sphere`] and shared by clones.
-    pub sphere: std::sync::Arc<std::sync::OnceLock<Option<(Vec3, f64)>>>,
-}
-
-impl Source {
-    /// The conductors' multipole expansion (built now if not yet), or `None` for a
-    /// source with too few segments for it to pay.
-    pub fn far_field(&self) -> Option<&crate::field::FarField> {
-        self.far
-            .get_or_init(|| crate::field::FarField::new(&self.conductors))
-            .as_ref()
-    }
-
-    /// The conductors' bounding sphere (centre m, radius m; see
-    /// [`crate::field::FieldSource::bounding_sphere`]), computed once: a sweep asks for
-    /// it at every step.
-    pub fn bounding_sphere(&self) -> Option<(Vec3, f64)> {
-        use crate::field::FieldSource;
-        *self
-            .sphere
-            .get_or_init(|| self.conductors.bounding_sphere())
-    }
-
-    /// The expansion if it was already built (by a sweep), without building it.
-    pub fn far_field_if_built(&self) -> Option<&crate::field::FarField> {
-        self.far.get().and_then(Option::as_ref)
-    }
-}
-
-impl Victim {
-    /// For a flat victim of one simple closed path (a `loop` or `rectangle`): the
-    /// centre (m) and radius (m) of a disc in its plane holding it, and its area (m²).
-    pub fn flat_face(&self) -> Option<(Vec3, f64, f64)> {
-        if !matches!(self.kind.as_str(), "loop" | "rectangle") {
-            return None;
-        }
-        let c = self.frame.origin;
-        let r = self
-            .edges
-            .iter()
-            .map(|e| {
-                let (ec, er) = e.bounding_sphere();
-                (ec - c).norm() + er
-            })
-            .fold(0.0, f64::max);
-        Some((c, r, self.area))
-    }
-}
-
-/// A victim loop: a closed path whose flux linkage gives the induced EMF.
-#[derive(Clone, Debug)]
-pub struct Victim {
-    /// Unique id.
-    pub id: String,
-    /// Kind as written (`loop`, `rectangle`, `polygon`, `trace`).
-    pub kind: String,
-    /// Placement; `frame.z` is the loop normal (positive EMF is right-handed about it).
-    pub frame: Frame,
-    /// The closed path, in the direction of positive EMF.
-    pub edges: Vec<Edge>,
-    /// Number of coincident turns.
-    pub turns: f64,
-    /// Allowed rms of the total EMF, V.
-    pub limit: Option<f64>,
-    /// Conductor radius, m.
-    pub wire_radius: f64,
-    /// Area of one turn, m².
-    pub area: f64,
-    /// Low-frequency self-inductance of all turns, H.
-    pub self_inductance: f64,
-    /// Load resistance across the victim's terminals, ohm (`load = { resistance }`).
-    pub load: Option<f64>,
-}
-
-impl Victim {
-    /// The victim turned by `rotation` about its centre and moved by `offset` (m).
-    pub fn moved(&self, rotation: &nalgebra::Rotation3<f64>, offset: &Vec3) -> Victim {
-        let pivot = self.frame.origin;
-        let edges = self
-            .edges
-            .iter()
-            .map(|e| e.moved(rotation, &pivot, offset))
-            .collect();
-        let frame = Frame {
-            origin: pivot + offset,
-            x: rotation * self.frame.x,
-            y: rotation * self.frame.y,
-            z: rotation * self.frame.z,
-        };
-        Victim {
-            edges,
-            frame,
-            ..self.clone()
-        }
-    }
-
-    /// The victim tilted by the smallest rotation that takes its axis to `normal`
-    /// (a unit vector), about its centre.
-    pub fn facing(&self, normal: &Vec3) -> Victim {
-        let rotation =
-            nalgebra::Rotation3::rotation_between(&self.frame.z, normal).unwrap_or_else(|| {
-                // Antiparallel: half a turn about the victim's own x axis.
-                nalgebra::Rotation3::from_axis_angle(
-                    &nalgebra::Unit::new_normalize(self.frame.x),
-                    std::f64::consts::PI,
-                )
-            });
-        self.moved(&rotation, &Vec3::zeros())
-    }
-}
 
 impl Scene {
     /// Reads and validates the scene file at `path`.
@@ -233,37 +69,6 @@ impl Scene {
             .unwrap_or_default();
         build(&root, base_dir)
     }
-
-    /// λ/2π at the highest line of any source, m.
-    pub fn near_field_limit(&self) -> f64 {
-        near_field_limit(self.highest_frequency())
-    }
-
-    /// Highest line frequency of any source, Hz.
-    pub fn highest_frequency(&self) -> f64 {
-        self.sources
-            .iter()
-            .flat_map(|s| s.lines.iter().map(|l| l.frequency))
-            .fold(0.0, f64::max)
-    }
-
-    /// A warning if `point` (m) is farther than a tenth of λ/2π from every source.
-    pub fn far_point_warning(&self, what: &str, point: &Vec3) -> Option<String> {
-        let limit = self.near_field_limit();
-        let nearest = self
-            .sources
-            .iter()
-            .map(|s| s.conductors.distance_to(point))
-            .fold(f64::INFINITY, f64::min);
-        (nearest.is_finite() && nearest > 0.1 * limit).then(|| {
-            format!(
-                "{what} is {} from the nearest source, beyond a tenth of λ/2π ({} at the \
-                 highest line): the quasi-static model may not hold there",
-                crate::units::format_si(nearest, "m", 4),
-                crate::units::format_si(limit, "m", 4)
-            )
-        })
-    }
 }
 
 /// Top-level tables, those of later versions refused by name.
@@ -292,7 +97,7 @@ fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, In
         None => String::new(),
     };
     let (tolerance, wire_radius) = parse_solver(root)?;
-    let ctx = source::Context {
+    let ctx = Context {
         tolerance,
         wire_radius,
         base_dir,
@@ -334,7 +139,7 @@ fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, In
             .iter()
             .filter(|sh| s.compare.contains(&Some(sh.id.clone())))
         {
-            if let Ok(alone) = crate::shield::barrier::Barrier::new(std::slice::from_ref(sheet)) {
+            if let Ok(alone) = Barrier::new(std::slice::from_ref(sheet)) {
                 shield::check_sweep(&item, &s, &alone, &victims)?;
             }
         }
@@ -366,7 +171,6 @@ fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, In
         barrier,
         enclosures,
         warnings,
-        exact: false,
     };
     let mut extra = Vec::new();
     for v in &scene.victims {
@@ -379,24 +183,6 @@ fn build(root: &Table<'_, '_>, base_dir: std::path::PathBuf) -> Result<Scene, In
     let mut scene = scene;
     scene.warnings.extend(extra);
     Ok(scene)
-}
-
-impl Scene {
-    /// The scene with only the sheet `id` fitted (`None`: no sheet), enclosures kept;
-    /// `None` if `id` names no sheet.
-    pub fn with_only_sheet(&self, id: Option<&str>) -> Option<Scene> {
-        let barrier = match id {
-            None => None,
-            Some(id) => {
-                let sheet = self.shields.iter().find(|s| s.id == id)?;
-                Some(crate::shield::barrier::Barrier::new(std::slice::from_ref(sheet)).ok()?)
-            }
-        };
-        Some(Scene {
-            barrier,
-            ..self.clone()
-        })
-    }
 }
 
 /// Number of distinct line frequencies over all sources.
@@ -462,82 +248,9 @@ fn check_unique(t: &Table<'_, '_>, id: &str, ids: &mut Vec<String>) -> Result<()
     Ok(())
 }
 
-/// Reads `id`: required, `[A-Za-z0-9_-]+`.
-pub(crate) fn parse_id(t: &Table<'_, '_>) -> Result<String, InputError> {
-    let v = t.require("id", "a unique name such as \"choke\"")?;
-    let id = v.string()?;
-    if id.is_empty()
-        || !id
-            .chars()
-            .all(|c| c.is_ascii_alphanumeric() || c == '_' || c == '-')
-    {
-        return Err(v.error(format!(
-            "\"{id}\" is not a valid id: use letters, digits, '_' and '-'"
-        )));
-    }
-    Ok(id.to_string())
-}
-
-/// Reads `kind` and checks it against `known`, refusing `later` kinds by name.
-pub(crate) fn parse_kind<'a>(
-    t: &Table<'a, '_>,
-    known: &[&str],
-    later: &[&str],
-) -> Result<&'a str, InputError> {
-    let v = t.require("kind", &format!("one of {}", known.join(", ")))?;
-    let kind = v.string()?;
-    if known.contains(&kind) {
-        return Ok(kind);
-    }
-    if later.contains(&kind) {
-        return Err(v.error(format!(
-            "kind \"{kind}\" is not supported yet in this version of strayflux"
-        )));
-    }
-    let hint = did_you_mean(kind, known)
-        .map(|s| format!("; did you mean \"{s}\"?"))
-        .unwrap_or_default();
-    Err(v.error(format!(
-        "unknown kind \"{kind}\"; expected one of {}{hint}",
-        known.join(", ")
-    )))
-}
-
-/// Reads the placement keys `position`, `axis`, `reference` into a frame.
-pub(crate) fn parse_frame(t: &Table<'_, '_>) -> Result<Frame, InputError> {
-    let origin = match t.get("position") {
-        Some(v) => v.vector(Dimension::Length)?,
-        None => Vec3::zeros(),
-    };
-    let axis = match t.get("axis") {
-        Some(v) => v.direction()?,
-        None => Vec3::z(),
-    };
-    let reference = match t.get("reference") {
-        Some(v) => Some((v.direction()?, v)),
-        None => None,
-    };
-    match Frame::new(origin, axis, reference.as_ref().map(|r| r.0)) {
-        Some(f) => Ok(f),
-        None => Err(match reference {
-            Some((_, v)) => {
-                v.error("`reference` is parallel to `axis`; give a direction across it")
-            }
-            None => t.error_at("axis", "cannot build a frame from this axis"),
-        }),
-    }
-}
-
-/// Winding kinds: a victim within their extent sits among the turns.
-const WINDINGS: &[&str] = &["helix", "toroid", "spiral", "saddle"];
-
 fn inside_winding_warning(scene: &Scene, v: &Victim) -> Option<String> {
     let c = v.frame.origin;
-    for s in scene
-        .sources
-        .iter()
-        .filter(|s| WINDINGS.contains(&s.kind.as_str()))
-    {
+    for s in scene.sources.iter().filter(|s| s.kind.is_winding()) {
         let f = &s.frame;
         let local = |p: &Vec3| {
             let d = p - f.origin;

@@ -1,14 +1,13 @@
 //! `[[shield]]` and `[[enclosure]]` tables → sheets, the combined stack, enclosures;
 //! checks that no sheet cuts a source or a victim and that no enclosure wall does.
 
+use super::common::{parse_frame, parse_id};
 use super::reader::{Table, Value, did_you_mean};
-use super::{Source, Victim, parse_frame, parse_id};
 use crate::error::InputError;
 use crate::field::Vec3;
-use crate::geometry::Edge;
-use crate::shield::barrier::{Barrier, Place, Sheet};
-use crate::shield::enclosure::Enclosure;
-use crate::shield::material::{self, Material};
+use crate::model::material::{self, Material};
+use crate::model::{Barrier, Enclosure, Place, Sheet};
+use crate::model::{Source, Victim, source_points, victim_points};
 use crate::units::Dimension;
 
 /// Reads a `material`: a built-in name or `{ conductivity, relative_permeability }`.
@@ -140,61 +139,6 @@ pub(crate) fn parse_sheet(t: &Table<'_, '_>) -> Result<Sheet, InputError> {
     })
 }
 
-/// Scene points of a victim's path (every edge sampled, arcs finely).
-pub fn victim_points(edges: &[Edge]) -> Vec<Vec3> {
-    edges
-        .iter()
-        .flat_map(|e| {
-            let n = match e {
-                Edge::Line { .. } => 1,
-                Edge::Arc { .. } => 256,
-            };
-            (0..=n).map(move |k| e.point(k as f64 / n as f64))
-        })
-        .collect()
-}
-
-/// Scene points of a source's conductors (vertices and dipole centres).
-pub fn source_points(s: &Source) -> Vec<Vec3> {
-    let c = &s.conductors;
-    c.wires
-        .iter()
-        .flat_map(|w| w.vertices.iter().copied())
-        .chain(c.dipoles.iter().map(|d| d.position))
-        .collect()
-}
-
-/// The side of the stack all `points` are on, or a reason naming `what`.
-pub fn side_of(barrier: &Barrier, points: &[Vec3], what: &str) -> Result<bool, String> {
-    let mut side = None;
-    for p in points {
-        let s = match barrier.place(p) {
-            Place::Below(d) | Place::Above(d) if d <= 0.0 => {
-                return Err(format!("{what} touches a shield face"));
-            }
-            Place::Below(_) => false,
-            Place::Above(_) => true,
-            Place::Inside(id) => {
-                return Err(format!("{what} reaches into shield \"{id}\""));
-            }
-            Place::Between(a, b) => {
-                return Err(format!(
-                    "{what} lies between shields \"{a}\" and \"{b}\"; strayflux places \
-                     sources and victims outside the stack of sheets only"
-                ));
-            }
-        };
-        match side {
-            None => side = Some(s),
-            Some(prev) if prev != s => {
-                return Err(format!("{what} crosses the plane of the shields"));
-            }
-            _ => {}
-        }
-    }
-    Ok(side.unwrap_or(false))
-}
-
 /// Reads the `[[shield]]` tables and checks them against the sources and victims.
 pub(crate) fn parse_shields(
     tables: &[Table<'_, '_>],
@@ -230,25 +174,24 @@ fn check_sides(
     victims: &[Victim],
 ) -> Result<(), InputError> {
     for s in sources {
-        side_of(barrier, &source_points(s), &format!("source \"{}\"", s.id)).map_err(|r| {
-            at.error_at(
-                "position",
-                format!("{r}: a sheet may not cut a source; move the sheet or the source"),
-            )
-        })?;
+        barrier
+            .side_of(&source_points(s), &format!("source \"{}\"", s.id))
+            .map_err(|r| {
+                at.error_at(
+                    "position",
+                    format!("{r}: a sheet may not cut a source; move the sheet or the source"),
+                )
+            })?;
     }
     for v in victims {
-        side_of(
-            barrier,
-            &victim_points(&v.edges),
-            &format!("victim \"{}\"", v.id),
-        )
-        .map_err(|r| {
-            at.error_at(
-                "position",
-                format!("{r}: a sheet may not cut a victim; move the sheet or the victim"),
-            )
-        })?;
+        barrier
+            .side_of(&victim_points(&v.edges), &format!("victim \"{}\"", v.id))
+            .map_err(|r| {
+                at.error_at(
+                    "position",
+                    format!("{r}: a sheet may not cut a victim; move the sheet or the victim"),
+                )
+            })?;
     }
     Ok(())
 }
@@ -353,21 +296,25 @@ pub(crate) fn parse_enclosure(
 /// Checks that every step of `spec` keeps its victim outside the sheets and on one side.
 pub(crate) fn check_sweep(
     t: &Table<'_, '_>,
-    spec: &super::sweep::SweepSpec,
+    spec: &crate::model::SweepSpec,
     barrier: &Barrier,
     victims: &[Victim],
 ) -> Result<(), InputError> {
     let base = &victims[spec.victim];
-    let placed = side_of(barrier, &victim_points(&base.edges), "the victim").ok();
+    let placed = barrier
+        .side_of(&victim_points(&base.edges), "the victim")
+        .ok();
     for x in spec.values() {
-        let v = crate::sweep::victim_at(base, spec, x);
+        let v = crate::model::sweep::victim_at(base, spec, x);
         let what = format!("at {} the victim \"{}\"", spec.vary.format_value(x), v.id);
-        let side = side_of(barrier, &victim_points(&v.edges), &what).map_err(|r| {
-            t.error_at(
-                "to",
-                format!("{r}: end the sweep before the sheet, or start it on the other side"),
-            )
-        })?;
+        let side = barrier
+            .side_of(&victim_points(&v.edges), &what)
+            .map_err(|r| {
+                t.error_at(
+                    "to",
+                    format!("{r}: end the sweep before the sheet, or start it on the other side"),
+                )
+            })?;
         if placed.is_some_and(|p| p != side) {
             return Err(t.error_at(
                 "to",
@@ -384,7 +331,7 @@ pub(crate) fn check_sweep(
 /// Checks that no grid point of `spec` lies inside a sheet or between two sheets.
 pub(crate) fn check_map(
     t: &Table<'_, '_>,
-    spec: &super::map::MapSpec,
+    spec: &crate::model::MapSpec,
     barrier: &Barrier,
 ) -> Result<(), InputError> {
     let Some((p, place)) = first_in_stack(spec, barrier) else {
@@ -413,7 +360,7 @@ pub(crate) fn check_map(
 /// 1e9-point map). Each interval's ends and their neighbours are tested with
 /// `Barrier::place`, which makes the exact decision with its own rounding; the first
 /// point inside or between sheets is returned with its place.
-fn first_in_stack(spec: &super::map::MapSpec, barrier: &Barrier) -> Option<(Vec3, Place)> {
+fn first_in_stack(spec: &crate::model::MapSpec, barrier: &Barrier) -> Option<(Vec3, Place)> {
     let mut axes = [0usize, 1, 2];
     axes.sort_by_key(|&a| spec.points[a]);
     let [a, b, c] = axes;

@@ -1,25 +1,18 @@
 //! `[[source]]` tables → placed conductors and their current.
 
+use super::common::{
+    Context, check_wire, parse_frame, parse_id, parse_kind, parse_points, parse_polygon,
+};
 use super::current::{CurrentContext, parse_current};
 use super::reader::{Table, Value};
 use super::windings::parse_winding;
-use super::{Source, parse_frame, parse_id, parse_kind};
 use crate::error::InputError;
 use crate::field::{Conductors, FieldSource, Vec3};
 use crate::geometry::{
     circle_source, dipole_source, polygon_source, polyline_source, rectangle_corners,
 };
-use crate::units::{Dimension, mm};
-
-/// Solver settings every element needs while it is built.
-pub(crate) struct Context {
-    /// Relative accuracy target.
-    pub tolerance: f64,
-    /// Default wire radius, m.
-    pub wire_radius: f64,
-    /// Folder that relative paths in the scene (a `file` source) start from.
-    pub base_dir: std::path::PathBuf,
-}
+use crate::model::{Source, SourceKind};
+use crate::units::Dimension;
 
 const KINDS: &[&str] = &[
     "loop",
@@ -186,13 +179,12 @@ pub(crate) fn parse(
     }
     Ok(Source {
         id,
-        kind: kind.to_string(),
+        kind: SourceKind::from_name(kind)
+            .ok_or_else(|| t.error_at("kind", format!("unknown source kind \"{kind}\"")))?,
         frame,
         conductors,
         lines,
         calibration,
-        far: Default::default(),
-        sphere: Default::default(),
     })
 }
 
@@ -227,71 +219,4 @@ fn calibrate_lines(
         l.current *= k;
     }
     Ok((at, field))
-}
-
-/// The wire must be thinner than the shape it is bent into.
-pub(crate) fn check_wire(v: &Value<'_, '_>, size: f64, wire_radius: f64) -> Result<(), InputError> {
-    if wire_radius * 2.0 >= size {
-        return Err(v.error(format!(
-            "{} is not larger than the wire diameter ({}); make it larger or set a smaller \
-             `wire_radius`",
-            mm(size),
-            mm(2.0 * wire_radius)
-        )));
-    }
-    Ok(())
-}
-
-/// An array of at least `min` points (local, m) with no two consecutive ones equal.
-pub(crate) fn parse_points(v: &Value<'_, '_>, min: usize) -> Result<Vec<Vec3>, InputError> {
-    let items = v.array()?;
-    if items.len() < min {
-        return Err(v.error(format!(
-            "needs at least {min} vertices, found {}",
-            items.len()
-        )));
-    }
-    let mut pts = Vec::with_capacity(items.len());
-    for item in &items {
-        let p = item.vector(Dimension::Length)?;
-        if pts.last() == Some(&p) {
-            return Err(item.error("repeats the previous vertex: a zero-length segment"));
-        }
-        pts.push(p);
-    }
-    Ok(pts)
-}
-
-/// Corners of a closed polygon: at least three, a repeated first vertex at the end
-/// dropped, non-zero area, no side shorter than the wire diameter.
-pub(crate) fn parse_polygon(v: &Value<'_, '_>, wire_radius: f64) -> Result<Vec<Vec3>, InputError> {
-    let mut pts = parse_points(v, 3)?;
-    if pts.len() > 3 && pts.first() == pts.last() {
-        pts.pop();
-    }
-    if pts.len() < 3 || pts.first() == pts.last() {
-        return Err(v.error("a polygon needs at least 3 distinct corners"));
-    }
-    let n = pts.len();
-    let area: Vec3 = (0..n)
-        .map(|i| pts[i].cross(&pts[(i + 1) % n]))
-        .sum::<Vec3>()
-        * 0.5;
-    let size = (0..n)
-        .map(|i| (pts[(i + 1) % n] - pts[i]).norm())
-        .fold(0.0, f64::max);
-    if area.norm() <= 1e-12 * size * size {
-        return Err(v.error("the corners are colinear: the polygon encloses no area"));
-    }
-    let shortest = (0..n)
-        .map(|i| (pts[(i + 1) % n] - pts[i]).norm())
-        .fold(f64::INFINITY, f64::min);
-    if shortest <= 2.0 * wire_radius {
-        return Err(v.error(format!(
-            "a side of {} is not longer than the wire diameter ({})",
-            mm(shortest),
-            mm(2.0 * wire_radius)
-        )));
-    }
-    Ok(pts)
 }

@@ -1,88 +1,11 @@
 //! `[[sweep]]` tables → validated sweep specifications.
 
+use super::common::parse_id;
 use super::reader::Table;
-use super::{Victim, parse_id};
 use crate::error::InputError;
-use crate::field::Vec3;
+use crate::model::Victim;
+use crate::model::sweep::{SweepSpec, Vary};
 use crate::units::Dimension;
-
-/// What a sweep varies.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub enum Vary {
-    /// The victim moves along a unit direction from its placed position; values in m.
-    Distance(Vec3),
-    /// The victim turns about a unit axis through its centre; values in rad.
-    Angle(Vec3),
-    /// The fundamental of every source; its lines scale with it; values in Hz.
-    Frequency,
-}
-
-impl Vary {
-    /// The keyword as written in scenes and JSON.
-    pub fn name(&self) -> &'static str {
-        match self {
-            Vary::Distance(_) => "distance",
-            Vary::Angle(_) => "angle",
-            Vary::Frequency => "frequency",
-        }
-    }
-
-    /// A swept value for messages: a length, an angle in degrees or a frequency.
-    pub fn format_value(&self, x: f64) -> String {
-        match self {
-            Vary::Distance(_) => crate::units::format_si(x, "m", 4),
-            Vary::Angle(_) => format!("{:.2}°", x.to_degrees()),
-            Vary::Frequency => crate::units::format_si(x, "Hz", 4),
-        }
-    }
-}
-
-/// A validated sweep.
-#[derive(Clone, Debug)]
-pub struct SweepSpec {
-    /// Unique id (names the output files).
-    pub id: String,
-    /// Index of the victim in `Scene::victims`.
-    pub victim: usize,
-    /// What varies.
-    pub vary: Vary,
-    /// First value (m, rad or Hz).
-    pub from: f64,
-    /// Last value (m, rad or Hz).
-    pub to: f64,
-    /// Number of samples, at least 2; `from` and `to` are sampled exactly.
-    pub steps: usize,
-    /// Logarithmic spacing (else linear).
-    pub log: bool,
-    /// Turn the victim to its worst-case orientation at every step.
-    pub worst: bool,
-    /// Shield alternatives to compare (`compare`): each a shield id, or `None` for no
-    /// sheet at all; each gives one more curve with only that sheet fitted.
-    pub compare: Vec<Option<String>>,
-}
-
-impl SweepSpec {
-    /// The swept values: `steps` samples from `from` to `to`, endpoints exact.
-    pub fn values(&self) -> Vec<f64> {
-        let n = self.steps;
-        (0..n)
-            .map(|k| {
-                if k == 0 {
-                    return self.from;
-                }
-                if k == n - 1 {
-                    return self.to;
-                }
-                let t = k as f64 / (n - 1) as f64;
-                if self.log {
-                    (self.from.ln() + (self.to.ln() - self.from.ln()) * t).exp()
-                } else {
-                    self.from + (self.to - self.from) * t
-                }
-            })
-            .collect()
-    }
-}
 
 /// Largest number of steps a sweep may take (each step is a full coupling solve).
 const MAX_STEPS: u64 = 100_000;

@@ -1,12 +1,12 @@
 //! `[[victim]]` tables → closed edge chains, turns, limits and self-inductance.
 
+use super::common::{Context, check_wire, parse_frame, parse_id, parse_kind, parse_polygon};
 use super::reader::Table;
-use super::source::{Context, check_wire, parse_polygon};
-use super::{Victim, parse_frame, parse_id, parse_kind};
 use crate::error::InputError;
 use crate::field::Vec3;
 use crate::geometry::{Edge, Frame, rectangle_corners, vector_area};
 use crate::inductance;
+use crate::model::{Victim, VictimKind};
 use crate::units::Dimension;
 use std::f64::consts::TAU;
 
@@ -111,7 +111,8 @@ pub(crate) fn parse(t: &Table<'_, '_>, ctx: &Context) -> Result<Victim, InputErr
     let area = vector_area(&edges).norm();
     Ok(Victim {
         id,
-        kind: kind.to_string(),
+        kind: VictimKind::from_name(kind)
+            .ok_or_else(|| t.error_at("kind", format!("unknown victim kind \"{kind}\"")))?,
         frame,
         edges,
         turns,

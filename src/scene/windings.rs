@@ -1,11 +1,11 @@
 //! `[[source]]` winding kinds: helix, toroid, spiral, saddle, pair, file.
 
+use super::common::{Context, check_wire};
+use super::points_csv::read_point_rows;
 use super::reader::{Table, Value};
-use super::source::{Context, check_wire};
 use crate::error::InputError;
 use crate::field::{Conductors, Polyline, Vec3};
 use crate::geometry::{Frame, helix, pair, round_spiral, saddle, square_spiral, toroid};
-use crate::points_csv::read_point_rows;
 use crate::units::{Dimension, mm};
 use std::f64::consts::PI;
 

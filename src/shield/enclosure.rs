@@ -15,43 +15,12 @@
 //! corners, seams, lids, holes and cable entries let field in, and a box much longer
 //! than it is wide is closer to an open cylinder. This is an estimate.
 
-use super::material::Material;
-use crate::field::{MU0, Vec3};
-use crate::geometry::Frame;
+use crate::field::MU0;
+use crate::model::{Enclosure, Material};
 use num_complex::Complex64;
 use std::f64::consts::PI;
 
-/// A closed box of one material around some victims.
-#[derive(Clone, Debug)]
-pub struct Enclosure {
-    /// Unique id.
-    pub id: String,
-    /// Centre and orientation (local x, y, z along the box's edges); origin in m.
-    pub frame: Frame,
-    /// Outside edge lengths along local x, y, z, m.
-    pub size: Vec3,
-    /// Wall material.
-    pub material: Material,
-    /// Wall thickness, m.
-    pub thickness: f64,
-    /// Ids of the victims inside.
-    pub contains: Vec<String>,
-}
-
 impl Enclosure {
-    /// Radius of the sphere of equal volume, m.
-    pub fn equivalent_radius(&self) -> f64 {
-        (3.0 * self.size.x * self.size.y * self.size.z / (4.0 * PI)).cbrt()
-    }
-
-    /// Whether scene point `r` (m) lies inside the box's outer surface.
-    pub fn holds(&self, r: &Vec3) -> bool {
-        let d = r - self.frame.origin;
-        d.dot(&self.frame.x).abs() < 0.5 * self.size.x
-            && d.dot(&self.frame.y).abs() < 0.5 * self.size.y
-            && d.dot(&self.frame.z).abs() < 0.5 * self.size.z
-    }
-
     /// Natural logarithm of the shielding factor S at `frequency` (Hz): the field
     /// inside is the field outside times e^{−ln S}. A logarithm so thick walls at high
     /// frequency do not overflow.

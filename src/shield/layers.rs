@@ -31,29 +31,8 @@
 //! underflow T gracefully to zero instead of overflowing.
 
 use crate::field::MU0;
+use crate::model::Layer;
 use num_complex::Complex64;
-
-/// One homogeneous layer of a stack.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct Layer {
-    /// Conductivity σ, S/m (0 for air).
-    pub conductivity: f64,
-    /// Relative permeability μr.
-    pub relative_permeability: f64,
-    /// Thickness, m.
-    pub thickness: f64,
-}
-
-impl Layer {
-    /// A gap of air (σ = 0, μr = 1) of `thickness` m.
-    pub fn air(thickness: f64) -> Self {
-        Layer {
-            conductivity: 0.0,
-            relative_permeability: 1.0,
-            thickness,
-        }
-    }
-}
 
 /// Reflection and transmission of one harmonic (dimensionless complex ratios of B_z).
 #[derive(Clone, Copy, Debug)]

@@ -4,14 +4,12 @@
 pub mod barrier;
 pub mod enclosure;
 pub mod layers;
-pub mod material;
 pub mod spectral;
 
-use crate::field::{Conductors, Vec3};
+use crate::error::SolveError;
+use crate::field::{Accelerated, Conductors, Vec3};
 use crate::geometry::Edge;
-use barrier::Barrier;
-use enclosure::Enclosure;
-use layers::Layer;
+use crate::model::{Barrier, Enclosure, Layer, Scene, SolverOptions, source_points};
 use num_complex::Complex64;
 use spectral::{Path, Plan, PlanError, SourceSpectrum, WORK_BUDGET};
 use std::f64::consts::TAU;
@@ -194,7 +192,7 @@ pub fn enclosures_between<'a>(
 }
 
 /// Whether the scene has any shield (sheet or enclosure).
-pub fn scene_is_shielded(scene: &crate::Scene) -> bool {
+pub fn scene_is_shielded(scene: &Scene) -> bool {
     scene.barrier.is_some() || !scene.enclosures.is_empty()
 }
 
@@ -205,11 +203,12 @@ pub fn scene_is_shielded(scene: &crate::Scene) -> bool {
 /// the source the field divided by its shielding factor. Fails for points inside or
 /// between sheets. `tick(points done)` reports progress, once per source per point.
 pub fn shielded_lines(
-    scene: &crate::Scene,
+    scene: &Scene,
+    options: &SolverOptions,
     points: &[Vec3],
     frequencies: &[f64],
     tick: &(dyn Fn(usize) + Sync),
-) -> Result<Vec<Vec<[Complex64; 3]>>, String> {
+) -> Result<Vec<Vec<[Complex64; 3]>>, SolveError> {
     use crate::spectrum::same_frequency;
     let mut out = vec![vec![[Complex64::new(0.0, 0.0); 3]; points.len()]; frequencies.len()];
     let sides: Vec<bool> = match &scene.barrier {
@@ -217,25 +216,28 @@ pub fn shielded_lines(
         Some(b) => points
             .iter()
             .map(|p| {
-                side_of(
-                    b,
+                b.side_of(
                     std::slice::from_ref(p),
                     &format!("the point {}", crate::units::mm_point(p)),
                 )
             })
-            .collect::<Result<_, String>>()?,
+            .collect::<Result<_, String>>()
+            .map_err(SolveError::Shield)?,
     };
     for s in &scene.sources {
-        let free =
-            crate::field::b_at_points(&crate::fieldmap::fast_source(scene, s, points), points);
-        let src_points = crate::scene::source_points(s);
+        let evaluator =
+            Accelerated::for_points(&s.conductors, points, options.tolerance, options.exact());
+        let free = crate::field::b_at_points(&evaluator, points);
+        let src_points = source_points(s);
         let (s_side, scattered) = match &scene.barrier {
             None => {
                 tick(points.len());
                 (false, None)
             }
             Some(b) => {
-                let s_side = side_of(b, &src_points, &format!("source \"{}\"", s.id))?;
+                let s_side = b
+                    .side_of(&src_points, &format!("source \"{}\"", s.id))
+                    .map_err(SolveError::Shield)?;
                 let targets: Vec<(Vec3, bool)> =
                     points.iter().copied().zip(sides.iter().copied()).collect();
                 let f = scattered_field(
@@ -244,10 +246,10 @@ pub fn shielded_lines(
                     s_side,
                     &targets,
                     frequencies,
-                    scene.tolerance,
+                    options.tolerance,
                     tick,
                 )
-                .map_err(|why| format!("a field point {why}"))?;
+                .map_err(|why| SolveError::Shield(format!("a field point {why}")))?;
                 (s_side, Some(f))
             }
         };
@@ -285,5 +287,3 @@ pub fn shielded_lines(
     }
     Ok(out)
 }
-
-use crate::scene::side_of;

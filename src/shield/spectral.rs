@@ -35,9 +35,10 @@
 //! A = (ẑ × k)/(i k²) e^{i k·ρ ∓ k z}, whose curl is the harmonic's B; it is exact along
 //! straight edges and Gauss–Legendre along arcs.
 
-use super::layers::{Layer, response};
+use super::layers::response;
 use crate::field::{Conductors, MU0, Vec3};
 use crate::geometry::Edge;
+use crate::model::Layer;
 use crate::quadrature::gauss_legendre;
 use num_complex::Complex64;
 use rayon::prelude::*;

@@ -1,7 +1,9 @@
 //! B phasors of every spectral line at chosen points.
 
-use crate::Scene;
+use super::Solver;
+use crate::error::SolveError;
 use crate::field::Vec3;
+use crate::model::Scene;
 use crate::spectrum::same_frequency;
 use num_complex::Complex64;
 
@@ -34,10 +36,14 @@ pub struct ProbePoint {
 /// B of every line of every source at `points` (m), with the scene's shields in
 /// place; fails only for points inside or between shield sheets (or too close to one
 /// to solve).
-pub fn probe(scene: &Scene, points: &[Vec3]) -> Result<Vec<ProbePoint>, String> {
+pub fn probe(
+    scene: &Scene,
+    solver: &Solver,
+    points: &[Vec3],
+) -> Result<Vec<ProbePoint>, SolveError> {
     if crate::shield::scene_is_shielded(scene) {
-        let freqs = frequencies(scene);
-        let lines = crate::shield::shielded_lines(scene, points, &freqs, &|_| {})?;
+        let freqs = scene.line_frequencies();
+        let lines = crate::shield::shielded_lines(scene, &solver.options, points, &freqs, &|_| {})?;
         return Ok(points
             .iter()
             .enumerate()
@@ -54,24 +60,12 @@ pub fn probe(scene: &Scene, points: &[Vec3]) -> Result<Vec<ProbePoint>, String> 
             })
             .collect());
     }
-    Ok(free_space(scene, points))
+    Ok(free_space(scene, solver, points))
 }
 
-/// Distinct line frequencies of the scene, ascending, Hz.
-fn frequencies(scene: &Scene) -> Vec<f64> {
-    let mut freqs: Vec<f64> = scene
-        .sources
-        .iter()
-        .flat_map(|s| s.lines.iter().map(|l| l.frequency))
-        .collect();
-    freqs.sort_by(f64::total_cmp);
-    freqs.dedup_by(|a, b| same_frequency(*a, *b));
-    freqs
-}
-
-fn free_space(scene: &Scene, points: &[Vec3]) -> Vec<ProbePoint> {
-    let per_source = crate::fieldmap::per_amp_fields(scene, points);
-    let freqs = frequencies(scene);
+fn free_space(scene: &Scene, solver: &Solver, points: &[Vec3]) -> Vec<ProbePoint> {
+    let per_source = super::map::per_amp_fields(scene, &solver.options, points, &|_| {});
+    let freqs = scene.line_frequencies();
     points
         .iter()
         .enumerate()

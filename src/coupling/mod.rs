@@ -5,12 +5,11 @@
 //! E_k = −j ω_k M I_k (peak values; rms = peak/√2), positive in the right-handed sense
 //! about the victim's axis.
 
-use crate::Scene;
-use crate::field::FieldSource;
+use crate::error::SolveError;
+use crate::field::{FarField, FieldSource, Vec3};
 use crate::geometry::Edge;
+use crate::model::{Enclosure, Scene, Source, Victim, source_points, victim_points};
 use crate::quadrature::{Integral, integrate_unit};
-use crate::scene::{Source, Victim};
-use crate::shield::enclosure::Enclosure;
 use crate::shield::spectral::Path;
 use crate::shield::{SHIELDING_CAP_DB, Scattered};
 use crate::spectrum::{Line, same_frequency};
@@ -317,38 +316,49 @@ pub struct PairModel {
     pub enclosures: Vec<Enclosure>,
 }
 
+/// What a pair model may reuse of its source, passed in by the caller that owns the
+/// caches (a run): nothing here changes the result beyond the tolerance.
+#[derive(Clone, Copy, Debug)]
+pub struct SourceAids<'a> {
+    /// The source's far-field series, if the caller built it and allows its use.
+    pub far: Option<&'a FarField>,
+    /// The source's bounding sphere (centre m, radius m), if it has one.
+    pub sphere: Option<(Vec3, f64)>,
+}
+
 impl PairModel {
-    /// Builds the model of `source` coupling into `victim` in `scene`.
-    pub fn new(scene: &Scene, source: &Source, victim: &Victim) -> Result<PairModel, String> {
-        let far = source.far_field_if_built().filter(|_| !scene.exact);
-        let sphere = source.bounding_sphere();
+    /// Builds the model of `source` coupling into `victim` in `scene`, to `tolerance`
+    /// (relative), with the series and sphere in `aids`.
+    pub fn new(
+        scene: &Scene,
+        source: &Source,
+        victim: &Victim,
+        aids: SourceAids<'_>,
+        tolerance: f64,
+    ) -> Result<PairModel, SolveError> {
+        let SourceAids { far, sphere } = aids;
         let phi = far
-            .and_then(|f| {
-                flux_from_far(
-                    f,
-                    sphere,
-                    &victim.edges,
-                    victim.flat_face(),
-                    scene.tolerance,
-                )
-            })
+            .and_then(|f| flux_from_far(f, sphere, &victim.edges, victim.flat_face(), tolerance))
             .unwrap_or_else(|| {
-                flux_per_amp_within(&source.conductors, sphere, &victim.edges, scene.tolerance)
+                flux_per_amp_within(&source.conductors, sphere, &victim.edges, tolerance)
             });
         // The source's vertices decide the side of a sheet and which enclosures hold
         // it; without shields they are not gathered (a sweep builds a model per step).
         let src_points = if scene.barrier.is_some() || !scene.enclosures.is_empty() {
-            crate::scene::source_points(source)
+            source_points(source)
         } else {
             Vec::new()
         };
         let scattered = match &scene.barrier {
             None => None,
             Some(b) => {
-                let vpts = crate::scene::victim_points(&victim.edges);
-                let s_side =
-                    crate::scene::side_of(b, &src_points, &format!("source \"{}\"", source.id))?;
-                let v_side = crate::scene::side_of(b, &vpts, &format!("victim \"{}\"", victim.id))?;
+                let vpts = victim_points(&victim.edges);
+                let s_side = b
+                    .side_of(&src_points, &format!("source \"{}\"", source.id))
+                    .map_err(SolveError::Shield)?;
+                let v_side = b
+                    .side_of(&vpts, &format!("victim \"{}\"", victim.id))
+                    .map_err(SolveError::Shield)?;
                 Some(
                     crate::shield::flux_model(
                         b,
@@ -357,9 +367,9 @@ impl PairModel {
                         &victim.edges,
                         &vpts,
                         v_side,
-                        scene.tolerance,
+                        tolerance,
                     )
-                    .map_err(|why| format!("victim \"{}\" {why}", victim.id))?,
+                    .map_err(|why| SolveError::Shield(format!("victim \"{}\" {why}", victim.id)))?,
                 )
             }
         };
@@ -434,69 +444,6 @@ pub fn margin_db(limit: f64, total: f64) -> f64 {
     } else {
         20.0 * (limit / total).log10()
     }
-}
-
-/// Everything `couple` reports for one victim.
-#[derive(Clone, Debug)]
-pub struct VictimReport {
-    /// Victim id.
-    pub id: String,
-    /// Allowed rms total, V.
-    pub limit: Option<f64>,
-    /// Total rms EMF over all sources and lines, V.
-    pub total_rms: f64,
-    /// Per-source coupling.
-    pub sources: Vec<SourceCoupling>,
-    /// Phasor sums per distinct frequency (Hz, V peak).
-    pub by_frequency: Vec<(f64, Complex64)>,
-    /// With a `load`: the rms voltage across it, V (see [`load_voltage`]).
-    pub load_rms: Option<f64>,
-}
-
-impl VictimReport {
-    /// 20·log10(limit / total), dB; `None` without a limit.
-    pub fn margin_db(&self) -> Option<f64> {
-        self.limit.map(|l| margin_db(l, self.total_rms))
-    }
-
-    /// Whether the total is within the limit; `None` without a limit.
-    pub fn pass(&self) -> Option<bool> {
-        self.limit.map(|l| self.total_rms <= l)
-    }
-}
-
-/// Couples every source of `scene` into `victim`; fails only when a shield cannot be
-/// solved for this placement (the reason names the victim).
-pub fn couple_victim(scene: &Scene, victim: &Victim) -> Result<VictimReport, String> {
-    let sources: Vec<SourceCoupling> = scene
-        .sources
-        .iter()
-        .map(|s| {
-            let model = PairModel::new(scene, s, victim)?;
-            Ok(SourceCoupling::from_model(
-                &s.id,
-                victim.turns,
-                &model,
-                &s.lines,
-            ))
-        })
-        .collect::<Result<_, String>>()?;
-    let by_frequency = emf_by_frequency(&sources);
-    let load_rms = victim.load.map(|r| {
-        let v: Vec<(f64, Complex64)> = by_frequency
-            .iter()
-            .map(|&(f, e)| (f, load_voltage(e, f, r, victim.self_inductance)))
-            .collect();
-        total_rms(&v)
-    });
-    Ok(VictimReport {
-        id: victim.id.clone(),
-        limit: victim.limit,
-        total_rms: total_rms(&by_frequency),
-        sources,
-        by_frequency,
-        load_rms,
-    })
 }
 
 /// Voltage across a load `r` (ohm) fed by EMF phasor `e` (V) at `f` (Hz) through the

@@ -1,14 +1,14 @@
 //! Sweeps: EMF versus distance, angle or frequency; the safe distance; worst-case
 //! orientation at every step.
 
-use crate::Scene;
+use super::Solver;
+use super::orientation::{Orientation, search, small_loop_matrix};
 use crate::coupling::{PairModel, SourceCoupling, emf_by_frequency, total_rms};
+use crate::error::SolveError;
 use crate::field::Vec3;
-use crate::orientation::{Orientation, search, small_loop_matrix};
-use crate::scene::Victim;
-use crate::scene::sweep::{SweepSpec, Vary};
+use crate::model::sweep::victim_at;
+use crate::model::{Scene, SweepSpec, Vary, Victim};
 use crate::spectrum::Line;
-use nalgebra::{Rotation3, Unit};
 use num_complex::Complex64;
 use rayon::prelude::*;
 
@@ -28,9 +28,17 @@ pub struct SweepRow {
     pub shielding_db: Vec<f64>,
 }
 
-/// Per-frequency EMF phasors (Hz, V peak), the total rms (V), and with shields the
-/// shielding of each frequency (dB).
-pub type VictimEmf = (Vec<(f64, Complex64)>, f64, Vec<f64>);
+/// A victim's EMF for one placement.
+#[derive(Clone, Debug)]
+pub struct VictimEmf {
+    /// EMF phasor of each distinct frequency, ascending (Hz, V peak).
+    pub lines: Vec<(f64, Complex64)>,
+    /// Total rms EMF, V.
+    pub total_rms: f64,
+    /// With shields: the shielding of each frequency, dB, in the order of `lines`;
+    /// empty without shields.
+    pub shielding_db: Vec<f64>,
+}
 
 /// A finished sweep.
 #[derive(Clone, Debug)]
@@ -78,18 +86,6 @@ struct Step {
     lines: Vec<Vec<Line>>,
 }
 
-/// The victim `base` at swept value `x` of `spec` (moved, turned, or as placed).
-pub fn victim_at(base: &Victim, spec: &SweepSpec, x: f64) -> Victim {
-    match spec.vary {
-        Vary::Distance(dir) => base.moved(&Rotation3::identity(), &(dir * x)),
-        Vary::Angle(axis) => base.moved(
-            &Rotation3::from_axis_angle(&Unit::new_normalize(axis), x),
-            &Vec3::zeros(),
-        ),
-        Vary::Frequency => base.clone(),
-    }
-}
-
 fn step_at(scene: &Scene, spec: &SweepSpec, x: f64) -> Step {
     let victim = victim_at(&scene.victims[spec.victim], spec, x);
     let lines = scene
@@ -116,14 +112,11 @@ fn step_at(scene: &Scene, spec: &SweepSpec, x: f64) -> Step {
 /// fails only when a shield cannot be solved for this placement.
 pub fn victim_emf(
     scene: &Scene,
+    solver: &Solver,
     victim: &Victim,
     lines: &[Vec<Line>],
-) -> Result<VictimEmf, String> {
-    let models: Vec<PairModel> = scene
-        .sources
-        .iter()
-        .map(|s| PairModel::new(scene, s, victim))
-        .collect::<Result<_, String>>()?;
+) -> Result<VictimEmf, SolveError> {
+    let models = solver.pair_models(scene, victim)?;
     Ok(emf_from_models(scene, &models, victim, lines))
 }
 
@@ -160,13 +153,17 @@ fn emf_from_models(
     } else {
         Vec::new()
     };
-    (by_f, total, shielding)
+    VictimEmf {
+        lines: by_f,
+        total_rms: total,
+        shielding_db: shielding,
+    }
 }
 
 /// The total for the orientation search: NaN where a shield cannot be solved (a tilted
 /// victim that would cut a sheet), which the search never prefers.
-fn search_total(scene: &Scene, victim: &Victim, lines: &[Vec<Line>]) -> f64 {
-    victim_emf(scene, victim, lines).map_or(f64::NAN, |r| r.1)
+fn search_total(scene: &Scene, solver: &Solver, victim: &Victim, lines: &[Vec<Line>]) -> f64 {
+    victim_emf(scene, solver, victim, lines).map_or(f64::NAN, |r| r.total_rms)
 }
 
 fn phasors(lines: &[Vec<Line>]) -> Vec<Vec<(f64, Complex64)>> {
@@ -177,71 +174,68 @@ fn phasors(lines: &[Vec<Line>]) -> Vec<Vec<(f64, Complex64)>> {
 }
 
 /// Worst orientation of `victim` for `lines`.
-fn worst(scene: &Scene, victim: &Victim, lines: &[Vec<Line>]) -> Orientation {
+fn worst(scene: &Scene, solver: &Solver, victim: &Victim, lines: &[Vec<Line>]) -> Orientation {
     let q = small_loop_matrix(scene, victim, &phasors(lines));
-    search(victim, &q, true, |v| search_total(scene, v, lines))
+    search(victim, &q, true, |v| search_total(scene, solver, v, lines))
 }
 
 fn row_at(
     scene: &Scene,
+    solver: &Solver,
     spec: &SweepSpec,
     x: f64,
     models: Option<&[PairModel]>,
-) -> Result<SweepRow, String> {
+) -> Result<SweepRow, SolveError> {
     let step = step_at(scene, spec, x);
-    if spec.worst {
-        let o = worst(scene, &step.victim, &step.lines);
-        let (lines, total, shielding_db) =
-            victim_emf(scene, &step.victim.facing(&o.normal), &step.lines)?;
-        Ok(SweepRow {
-            value: x,
-            lines,
-            total_rms: total,
-            worst_axis: Some(o.normal),
-            shielding_db,
-        })
+    let (emf, worst_axis) = if spec.worst {
+        let o = worst(scene, solver, &step.victim, &step.lines);
+        let turned = step.victim.facing(&o.normal);
+        (
+            victim_emf(scene, solver, &turned, &step.lines)?,
+            Some(o.normal),
+        )
     } else {
-        let (lines, total, shielding_db) = match models {
+        let emf = match models {
             Some(m) => emf_from_models(scene, m, &step.victim, &step.lines),
-            None => victim_emf(scene, &step.victim, &step.lines)?,
+            None => victim_emf(scene, solver, &step.victim, &step.lines)?,
         };
-        Ok(SweepRow {
-            value: x,
-            lines,
-            total_rms: total,
-            worst_axis: None,
-            shielding_db,
-        })
-    }
+        (emf, None)
+    };
+    Ok(SweepRow {
+        value: x,
+        lines: emf.lines,
+        total_rms: emf.total_rms,
+        worst_axis,
+        shielding_db: emf.shielding_db,
+    })
 }
 
 /// Runs one sweep. `progress` is called once per finished step (from any thread).
 /// Fails only when a shield cannot be solved at some step (the reason says which).
 pub fn run(
     scene: &Scene,
+    solver: &Solver,
     spec: &SweepSpec,
     progress: &(dyn Fn() + Sync),
-) -> Result<SweepResult, String> {
+) -> Result<SweepResult, SolveError> {
     let victim = &scene.victims[spec.victim];
     // A distance or angle sweep places the victim many times: far steps then take the
     // flux from each source's multipole expansion where that is proven within the
     // tolerance (not with --exact), if the sweep has enough far work to repay building
     // it. A frequency sweep computes its fluxes once.
-    if !scene.exact && !matches!(spec.vary, Vary::Frequency) && moments_pay(spec, victim) {
-        for s in &scene.sources {
-            let _ = s.far_field();
-        }
+    if !matches!(spec.vary, Vary::Frequency) && moments_pay(spec, victim) {
+        solver.build_far_fields(scene);
     }
-    let rows = rows_of(scene, spec, progress)?;
+    let rows = rows_of(scene, solver, spec, progress)?;
     let mut compare = Vec::new();
     for alt in &spec.compare {
         let alone = scene.with_only_sheet(alt.as_deref()).ok_or_else(|| {
-            format!(
+            SolveError::Alternative(format!(
                 "sweep \"{}\": shield {alt:?} cannot be fitted alone",
                 spec.id
-            )
+            ))
         })?;
-        let totals = rows_of(&alone, spec, progress)?
+        let totals = rows_of(&alone, solver, spec, progress)?
             .iter()
             .map(|r| r.total_rms)
             .collect();
@@ -253,16 +247,16 @@ pub fn run(
     let limit = victim.limit;
     let safe_value = match (spec.vary, limit) {
         (Vary::Distance(_), Some(l)) => safe_distance(&rows, l, scene.tolerance, |x| {
-            row_at(scene, spec, x, None).map_or(f64::INFINITY, |r| r.total_rms)
+            row_at(scene, solver, spec, x, None).map_or(f64::INFINITY, |r| r.total_rms)
         }),
         _ => None,
     };
     let base_lines: Vec<Vec<Line>> = scene.sources.iter().map(|s| s.lines.clone()).collect();
-    let placed_total = victim_emf(scene, victim, &base_lines)?.1;
+    let placed_total = victim_emf(scene, solver, victim, &base_lines)?.total_rms;
     let q = small_loop_matrix(scene, victim, &phasors(&base_lines));
     // None when no orientation could be solved (every tilt would cut a sheet).
     let best_at_placed = Some(search(victim, &q, false, |v| {
-        search_total(scene, v, &base_lines)
+        search_total(scene, solver, v, &base_lines)
     }))
     .filter(|o| o.total_rms.is_finite());
     Ok(SweepResult {
@@ -295,25 +289,20 @@ fn moments_pay(spec: &SweepSpec, victim: &Victim) -> bool {
 /// Every step of `spec` in `scene`, in parallel.
 fn rows_of(
     scene: &Scene,
+    solver: &Solver,
     spec: &SweepSpec,
     progress: &(dyn Fn() + Sync),
-) -> Result<Vec<SweepRow>, String> {
+) -> Result<Vec<SweepRow>, SolveError> {
     let victim = &scene.victims[spec.victim];
     // A frequency sweep keeps the geometry: build the pair models once.
     let models: Option<Vec<PairModel>> = match spec.vary {
-        Vary::Frequency => Some(
-            scene
-                .sources
-                .iter()
-                .map(|s| PairModel::new(scene, s, victim))
-                .collect::<Result<_, String>>()?,
-        ),
+        Vary::Frequency => Some(solver.pair_models(scene, victim)?),
         _ => None,
     };
     spec.values()
         .into_par_iter()
         .map(|x| {
-            let row = row_at(scene, spec, x, models.as_deref());
+            let row = row_at(scene, solver, spec, x, models.as_deref());
             progress();
             row
         })

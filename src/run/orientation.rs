@@ -7,9 +7,8 @@
 //! by frequency; its smallest, the null. Then refine on the real, finite loop by a
 //! pattern search over the loop normal, each trial a full flux solve.
 
-use crate::Scene;
 use crate::field::{FieldSource, Vec3};
-use crate::scene::Victim;
+use crate::model::{Scene, Victim};
 use nalgebra::{Matrix3, SymmetricEigen};
 use num_complex::Complex64;
 

@@ -1,28 +1,34 @@
-//! Field maps: B phasors of a spectral line on a regular grid.
+//! `map`: B phasors of a spectral line on a regular grid.
 
-use crate::Scene;
-use crate::field::{Vec3, b_at_points};
-use crate::scene::map::{MapLines, MapSpec};
+use crate::field::{Accelerated, Vec3, b_at_points};
+use crate::model::{MapLines, MapSpec, Scene, SolverOptions};
 use crate::spectrum::same_frequency;
 use num_complex::Complex64;
 
-/// `source`'s conductors as evaluated at `points` (m) in `scene`: with their far-field
-/// expansion where it holds, unless the scene asks for `exact` sums.
-pub fn fast_source<'a>(
+/// B per ampere (T/A) of every source at every point (m): `[source][point]`, with each
+/// source's far-field series where it holds unless `options` ask for exact sums. The
+/// points go in chunks; `tick(points done)` is called after each.
+pub fn per_amp_fields(
     scene: &Scene,
-    source: &'a crate::scene::Source,
+    options: &SolverOptions,
     points: &[Vec3],
-) -> crate::field::Accelerated<'a> {
-    crate::field::Accelerated::for_points(&source.conductors, points, scene.tolerance, scene.exact)
-}
-
-/// B per ampere (T/A) of every source at every point (m): `[source][point]`.
-pub fn per_amp_fields(scene: &Scene, points: &[Vec3]) -> Vec<Vec<Vec3>> {
-    scene
+    tick: &(dyn Fn(usize) + Sync),
+) -> Vec<Vec<Vec3>> {
+    const CHUNK: usize = 1 << 14;
+    let mut out: Vec<Vec<Vec3>> = vec![Vec::with_capacity(points.len()); scene.sources.len()];
+    // Each source's far-field expansion is built once for all the points.
+    let evaluators: Vec<Accelerated> = scene
         .sources
         .iter()
-        .map(|s| b_at_points(&fast_source(scene, s, points), points))
-        .collect()
+        .map(|s| Accelerated::for_points(&s.conductors, points, options.tolerance, options.exact()))
+        .collect();
+    for chunk in points.chunks(CHUNK) {
+        for (o, e) in out.iter_mut().zip(&evaluators) {
+            o.extend(b_at_points(e, chunk));
+        }
+        tick(chunk.len());
+    }
+    out
 }
 
 /// The B phasor (T peak, per component) at every point for the line at `frequency` (Hz):

@@ -1,0 +1,151 @@
+//! Helpers every table reader shares: the build context, ids, kinds, frames and the
+//! checks on wires and polygons.
+
+use super::reader::{Table, Value, did_you_mean};
+use crate::error::InputError;
+use crate::field::Vec3;
+use crate::geometry::Frame;
+use crate::units::{Dimension, mm};
+
+/// Solver settings every element needs while it is built.
+pub(crate) struct Context {
+    /// Relative accuracy target.
+    pub tolerance: f64,
+    /// Default wire radius, m.
+    pub wire_radius: f64,
+    /// Folder that relative paths in the scene (a `file` source) start from.
+    pub base_dir: std::path::PathBuf,
+}
+
+/// Reads `id`: required, `[A-Za-z0-9_-]+`.
+pub(crate) fn parse_id(t: &Table<'_, '_>) -> Result<String, InputError> {
+    let v = t.require("id", "a unique name such as \"choke\"")?;
+    let id = v.string()?;
+    if id.is_empty()
+        || !id
+            .chars()
+            .all(|c| c.is_ascii_alphanumeric() || c == '_' || c == '-')
+    {
+        return Err(v.error(format!(
+            "\"{id}\" is not a valid id: use letters, digits, '_' and '-'"
+        )));
+    }
+    Ok(id.to_string())
+}
+
+/// Reads `kind` and checks it against `known`, refusing `later` kinds by name.
+pub(crate) fn parse_kind<'a>(
+    t: &Table<'a, '_>,
+    known: &[&str],
+    later: &[&str],
+) -> Result<&'a str, InputError> {
+    let v = t.require("kind", &format!("one of {}", known.join(", ")))?;
+    let kind = v.string()?;
+    if known.contains(&kind) {
+        return Ok(kind);
+    }
+    if later.contains(&kind) {
+        return Err(v.error(format!(
+            "kind \"{kind}\" is not supported yet in this version of strayflux"
+        )));
+    }
+    let hint = did_you_mean(kind, known)
+        .map(|s| format!("; did you mean \"{s}\"?"))
+        .unwrap_or_default();
+    Err(v.error(format!(
+        "unknown kind \"{kind}\"; expected one of {}{hint}",
+        known.join(", ")
+    )))
+}
+
+/// Reads the placement keys `position`, `axis`, `reference` into a frame.
+pub(crate) fn parse_frame(t: &Table<'_, '_>) -> Result<Frame, InputError> {
+    let origin = match t.get("position") {
+        Some(v) => v.vector(Dimension::Length)?,
+        None => Vec3::zeros(),
+    };
+    let axis = match t.get("axis") {
+        Some(v) => v.direction()?,
+        None => Vec3::z(),
+    };
+    let reference = match t.get("reference") {
+        Some(v) => Some((v.direction()?, v)),
+        None => None,
+    };
+    match Frame::new(origin, axis, reference.as_ref().map(|r| r.0)) {
+        Some(f) => Ok(f),
+        None => Err(match reference {
+            Some((_, v)) => {
+                v.error("`reference` is parallel to `axis`; give a direction across it")
+            }
+            None => t.error_at("axis", "cannot build a frame from this axis"),
+        }),
+    }
+}
+
+/// The wire must be thinner than the shape it is bent into.
+pub(crate) fn check_wire(v: &Value<'_, '_>, size: f64, wire_radius: f64) -> Result<(), InputError> {
+    if wire_radius * 2.0 >= size {
+        return Err(v.error(format!(
+            "{} is not larger than the wire diameter ({}); make it larger or set a smaller \
+             `wire_radius`",
+            mm(size),
+            mm(2.0 * wire_radius)
+        )));
+    }
+    Ok(())
+}
+
+/// An array of at least `min` points (local, m) with no two consecutive ones equal.
+pub(crate) fn parse_points(v: &Value<'_, '_>, min: usize) -> Result<Vec<Vec3>, InputError> {
+    let items = v.array()?;
+    if items.len() < min {
+        return Err(v.error(format!(
+            "needs at least {min} vertices, found {}",
+            items.len()
+        )));
+    }
+    let mut pts = Vec::with_capacity(items.len());
+    for item in &items {
+        let p = item.vector(Dimension::Length)?;
+        if pts.last() == Some(&p) {
+            return Err(item.error("repeats the previous vertex: a zero-length segment"));
+        }
+        pts.push(p);
+    }
+    Ok(pts)
+}
+
+/// Corners of a closed polygon: at least three, a repeated first vertex at the end
+/// dropped, non-zero area, no side shorter than the wire diameter.
+pub(crate) fn parse_polygon(v: &Value<'_, '_>, wire_radius: f64) -> Result<Vec<Vec3>, InputError> {
+    let mut pts = parse_points(v, 3)?;
+    if pts.len() > 3 && pts.first() == pts.last() {
+        pts.pop();
+    }
+    if pts.len() < 3 || pts.first() == pts.last() {
+        return Err(v.error("a polygon needs at least 3 distinct corners"));
+    }
+    let n = pts.len();
+    let area: Vec3 = (0..n)
+        .map(|i| pts[i].cross(&pts[(i + 1) % n]))
+        .sum::<Vec3>()
+        * 0.5;
+    let size = (0..n)
+        .map(|i| (pts[(i + 1) % n] - pts[i]).norm())
+        .fold(0.0, f64::max);
+    if area.norm() <= 1e-12 * size * size {
+        return Err(v.error("the corners are colinear: the polygon encloses no area"));
+    }
+    let shortest = (0..n)
+        .map(|i| (pts[(i + 1) % n] - pts[i]).norm())
+        .fold(f64::INFINITY, f64::min);
+    if shortest <= 2.0 * wire_radius {
+        return Err(v.error(format!(
+            "a side of {} is not longer than the wire diameter ({})",
+            mm(shortest),
+            mm(2.0 * wire_radius)
+        )));
+    }
+    Ok(pts)
+}

@@ -322,7 +322,7 @@ pub fn mm(metres: f64) -> String {
 }
 
 /// A point for messages, each coordinate in engineering units: `(1.000 mm, 0.000 m, ...)`.
-pub fn mm_point(p: &crate::field::Vec3) -> String {
+pub fn mm_point(p: &nalgebra::Vector3<f64>) -> String {
     format!("({}, {}, {})", mm(p.x), mm(p.y), mm(p.z))
 }
 

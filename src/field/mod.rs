@@ -5,10 +5,8 @@
 //! Hanson & Hirshman 2002) and point dipoles ([`Dipole`]). Fields are magnetostatic;
 //! the caller scales them by each spectral line's current phasor.
 
-#[cfg(target_arch = "x86_64")]
-mod avx512;
 mod dipole;
-mod kernel;
+mod kernels;
 pub mod multipole;
 mod segment;
 

@@ -12,7 +12,7 @@
 //! meet there. Within the wire radius the field of a round conductor carrying uniform
 //! current is used instead, so no point gives NaN or infinity.
 
-use super::kernel::{Soa, field_block, field_sum, log_sum};
+use super::kernels::{Soa, field_block, field_sum, log_sum};
 use super::{FieldSource, MU0_OVER_4PI, Vec3};
 
 /// A filament path carrying `weight` amperes per ampere of source current.
@@ -109,7 +109,7 @@ impl Polyline {
     /// matches `vertices` and `wire_radius` (its careful reach depends on the radius).
     #[cfg(target_arch = "x86_64")]
     fn oct_ready(&self) -> bool {
-        super::avx512::available()
+        super::kernels::avx512::available()
             && self.soa.segments() == self.segment_count()
             && self.soa.wire_radius() == self.wire_radius
     }
@@ -121,7 +121,7 @@ impl Polyline {
         let a2 = self.wire_radius * self.wire_radius;
         let careful = self.careful_b(pts, a2);
         // SAFETY: the callers checked that the CPU has AVX-512F.
-        let b = unsafe { super::avx512::field_oct(&self.soa, pts, &careful) };
+        let b = unsafe { super::kernels::avx512::field_oct(&self.soa, pts, &careful) };
         b.map(|b| b * (MU0_OVER_4PI * self.weight))
     }
 }

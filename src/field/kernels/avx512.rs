@@ -16,14 +16,15 @@
 //! Within one path the operations and their order are fixed, so results do not depend
 //! on the thread count or on which other points share a block.
 
-use super::Vec3;
-use super::kernel::{ATANH, FieldArrays, SERIES_T, SHORT_T, Soa, finish_log_sum, lane_log};
+use super::series::{ATANH, SERIES_T, SHORT_T, finish_log_sum, lane_log};
+use super::soa::{FieldArrays, Soa};
+use crate::field::Vec3;
 use std::arch::x86_64::*;
 
 /// Whether this run uses the 512-bit paths: the CPU has AVX-512F and `STRAYFLUX_SIMD`
-/// does not cap it ([`super::simd`]).
+/// does not cap it ([`crate::field::simd`]).
 pub(crate) fn available() -> bool {
-    super::simd() >= super::Simd::Avx512
+    crate::field::simd() >= crate::field::Simd::Avx512
 }
 
 /// n/d in every lane, within a few ulp, for finite nonzero d.
@@ -50,7 +51,7 @@ fn from_lanes(v: [f64; 8]) -> __m512d {
 }
 
 /// Σ of the segments' B (without μ0/4π) at eight points at once, one per lane: the
-/// 512-bit form of the four-point field block of [`super::kernel`], with the same closed
+/// 512-bit form of the four-point field block of [`portable`](super::portable), with the same closed
 /// form and the same careful fallback (`careful(k, lane)` gives segment `k`'s B at point
 /// `lane`). A lane is careful when Ri + Rf ≤ L + max(L/100, 2a) for the layout's wire
 /// radius a ([`Soa::field_arrays`]): near the segment, where Ri + Rf − L loses digits,
@@ -177,7 +178,7 @@ fn careful_lanes<F: Fn(usize, usize) -> Vec3>(
 
 /// Σ ê·ln((Ri+Rf+L)/(Ri+Rf−L)) over segments and Σ |ln(...)| for the point `r` (m),
 /// eight segments at a time: the 512-bit form of the potential sum of
-/// [`super::kernel`], with the same series, the same thresholds and the same fallback
+/// [`portable`](super::portable), with the same series, the same thresholds and the same fallback
 /// (`careful(k, r_i, r_f)` for segment `k` near the point). `dist` is scratch space.
 ///
 /// # Safety
@@ -402,7 +403,7 @@ mod tests {
         for p in blocks.iter().flatten() {
             // SAFETY: AVX-512F was detected above.
             let fast = unsafe { log_sum_oct(&soa, p, radius, &careful, &mut dist) };
-            let slow = super::super::kernel::portable_log_sum(&soa, p, radius, &careful);
+            let slow = super::super::portable::portable_log_sum(&soa, p, radius, &careful);
             let scale = 64.0 * f64::EPSILON * slow.1;
             let diff = (fast.0 - slow.0).abs().max().max((fast.1 - slow.1).abs());
             worst = worst.max(diff / slow.1);

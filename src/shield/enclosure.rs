@@ -9,9 +9,12 @@
 //! S = H_outside / H_inside = cosh(γt) + (1/3)(K + 2/K) sinh(γt),   γ = √(jωμ0μrσ),  K = γR/μr
 //! ```
 //!
-//! whose limits are the two classical thin-shell results (PHYSICS §6): at ω = 0,
-//! S = 1 + (2/3)μr t/R (magnetostatic); for μr = 1 and t ≪ δ, S = 1 + jωμ0σtR/3 (eddy
-//! currents). Both limits are tested. A real box does worse than the sphere: its
+//! whose limits are the two classical thin-shell results: at ω = 0,
+//! S = 1 + (2/3)μr t/R (magnetostatic; the thin-wall limit of the permeable spherical
+//! shell in Jackson, "Classical Electrodynamics", 3rd ed., §5.12); for μr = 1 and t ≪ δ,
+//! S = 1 + jωμ0σtR/3 (eddy currents; Hoburg, "Principles of quasistatic magnetic
+//! shielding with cylindrical and spherical shields", IEEE Trans. EMC 37, 1995, from
+//! memory). Both limits are tested. A real box does worse than the sphere: its
 //! corners, seams, lids, holes and cable entries let field in, and a box much longer
 //! than it is wide is closer to an open cylinder. This is an estimate.
 
@@ -80,7 +83,8 @@ mod tests {
 
     #[test]
     fn magnetostatic_limit_is_one_plus_two_thirds_mu_t_over_r() {
-        // PHYSICS §6: thin spherical shell at DC, S ≈ 1 + (2/3) μr t / R.
+        // Thin spherical shell at DC, S ≈ 1 + (2/3) μr t / R: the thin-wall limit of
+        // Jackson, Classical Electrodynamics, 3rd ed., §5.12 (1 − a³/b³ ≈ 3t/R).
         let s = ln_shell_factor(&mat(5.8e6, 1000.0), 1e-4, 0.05, 0.0).exp();
         let expected = 1.0 + 2.0 / 3.0 * 1000.0 * 1e-4 / 0.05;
         assert!((s.re - expected).abs() < 1e-12 && s.im.abs() < 1e-12, "{s}");
@@ -88,7 +92,8 @@ mod tests {
 
     #[test]
     fn eddy_current_limit_is_one_plus_j_omega_mu_sigma_t_r_over_3() {
-        // PHYSICS §6: non-magnetic thin shell, t ≪ δ: S ≈ 1 + jωμ0σtR/3. Copper 10 µm
+        // Non-magnetic thin shell, t ≪ δ: S ≈ 1 + jωμ0σtR/3 (Hoburg, IEEE Trans. EMC 37,
+        // 1995, thin-shell limit; from memory). Copper 10 µm
         // at 1 kHz (δ = 2.1 mm) on a 0.5 m sphere: the neglected terms are 2t/(3R) ≈
         // 1.3e-5 and (t/δ)² ≈ 2e-5 of the leading ones.
         let (sigma, t, r, f) = (5.8e7, 1e-5, 0.5, 1e3);

@@ -96,9 +96,12 @@ pub(crate) unsafe fn field_oct<F: Fn(usize, usize) -> Vec3>(
             _mm512_fmadd_pd(y, y, _mm512_mul_pd(x, x)),
         ))
     };
-    // SAFETY (every `get_unchecked` below): k < m, k + 1 ≤ m, and the lengths were
-    // asserted above.
-    let at = |v: &[f64], k: usize| _mm512_set1_pd(unsafe { *v.get_unchecked(k) });
+    let at = |v: &[f64], k: usize| {
+        // SAFETY: at every call below k < m or k + 1 ≤ m, and the lengths were asserted
+        // above.
+        let x = unsafe { *v.get_unchecked(k) };
+        _mm512_set1_pd(x)
+    };
     let mut dx = _mm512_sub_pd(rx, at(vx, 0));
     let mut dy = _mm512_sub_pd(ry, at(vy, 0));
     let mut dz = _mm512_sub_pd(rz, at(vz, 0));

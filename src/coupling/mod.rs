@@ -143,12 +143,15 @@ pub fn flux_from_far(
 ) -> Option<Integral> {
     use crate::field::Vec3;
     use crate::field::multipole::MAX_ORDER;
+    use crate::field::multipole::policy::{
+        FLUX_GUESS_SHARE, FLUX_NEAR_RADII, TOLERANCE_SHARE, flux_series_pays, usable_at,
+    };
     let (centre, r_far) = far.sphere();
     // A victim whose nearest part is within twice the conductors' radius would need
     // more degrees than are kept.
     let near = edges.iter().any(|e| {
         let (c, r) = e.bounding_sphere();
-        (c - centre).norm() - r < 2.0 * r_far
+        (c - centre).norm() - r < FLUX_NEAR_RADII * r_far
     });
     if near {
         return None;
@@ -165,7 +168,7 @@ pub fn flux_from_far(
             for (xi, wi) in x.iter().zip(w) {
                 let t = mid + half * xi;
                 let p = edge.point(t);
-                if (p - centre).norm() <= 1.5 * r_far {
+                if !usable_at((p - centre).norm(), r_far) {
                     return None;
                 }
                 nodes.push((p, edge.tangent(t) * (wi * half)));
@@ -205,14 +208,13 @@ pub fn flux_from_far(
     };
     let (first, _) = flux_through(2);
     let guess: f64 = first.iter().sum::<f64>().abs();
-    let q = (2..=far.order()).find(|&q| bound(q) <= 0.05 * tolerance * guess)?;
-    // A term costs about half a segment–point pair: pay only if clearly cheaper.
-    if far.terms(q) * 2 > far.segments() {
+    let q = (2..=far.order()).find(|&q| bound(q) <= FLUX_GUESS_SHARE * tolerance * guess)?;
+    if !flux_series_pays(far.terms(q), far.segments()) {
         return None;
     }
     let (by_degree, noise) = flux_through(q);
     let value: f64 = by_degree.iter().sum();
-    if bound(q) + noise > 0.1 * tolerance * value.abs() {
+    if bound(q) + noise > TOLERANCE_SHARE * tolerance * value.abs() {
         return None;
     }
     Some(Integral {

@@ -270,20 +270,11 @@ pub fn run(
     })
 }
 
-/// Building a source's moments (degree 16) costs about as much as this many direct
-/// evaluations of its potential at one point, whatever its number of segments (both
-/// scale with it): 11.5 ms of one core for the 2000-segment polygon of the sweep
-/// benchmark, against 3.1–4.4 µs per point with the AVX-512 potential kernel (a ratio
-/// of 2600–3700; it was 17 ms against 6 µs with the 256-bit kernel).
-const MOMENT_BUILD_POINTS: usize = 3000;
-
-/// Whether a sweep of `victim` could save more than twice the moments' cost. Measured
-/// on the sweep benchmark, a far placement saves about one direct evaluation per
-/// first-pass quadrature panel of the victim's edges (the series is cheaper per node,
-/// not free); at most every step is far.
+/// Whether a sweep of `victim` over `spec` repays building the moments (the far-field
+/// policy's rule).
 fn moments_pay(spec: &SweepSpec, victim: &Victim) -> bool {
     let panels: usize = victim.edges.iter().map(|e| e.initial_panels()).sum();
-    spec.steps.saturating_mul(panels) >= 2 * MOMENT_BUILD_POINTS
+    crate::field::multipole::policy::moments_pay(spec.steps, panels)
 }
 
 /// Every step of `spec` in `scene`, in parallel.

@@ -30,28 +30,16 @@
 //! otherwise it is summed directly. So the expansion's result is within the tolerance
 //! of the exact one wherever it is used.
 
-use super::{Conductors, FieldSource, MU0_OVER_4PI, Vec3};
-use rayon::prelude::*;
+pub mod policy;
 
-/// Highest multipole degree any expansion keeps (maps keep this many; see
-/// [`FarField::with_order`]).
-pub const MAX_ORDER: usize = 24;
+use super::{Conductors, FieldSource, MU0_OVER_4PI, Vec3};
+pub use policy::{MAX_ORDER, MIN_SEGMENTS, SWEEP_ORDER};
+use policy::{TOLERANCE_SHARE, order_for_points, point_series_pays, usable_at};
+use rayon::prelude::*;
 
 /// The B series' degree (through moments of degree 2) after which a point whose bound
 /// cannot come under its allowance within the order kept gives up.
 const GUESS_DEGREE: usize = 3;
-
-/// The degree kept by [`FarField::new`]: enough for sweeps, whose moments must be cheap
-/// to build compared with a few hundred flux integrals.
-pub const SWEEP_ORDER: usize = 16;
-
-/// Sources with fewer segments than this are always summed directly: their direct sum
-/// is as cheap as the series.
-pub const MIN_SEGMENTS: usize = 64;
-
-/// The share of the tolerance the truncation bound may use (the rest is margin for the
-/// direct sum's own error).
-const SHARE: f64 = 0.1;
 
 /// Multi-index tables for degrees 0..=`MAX_ORDER` + 1.
 #[derive(Clone)]
@@ -444,12 +432,6 @@ impl FarField {
         self.b_bound(self.order, r_dist) <= 4.0 * allowed
     }
 
-    /// The most series terms worth computing instead of the direct sum: a term costs
-    /// about half a segment–point pair.
-    fn budget(&self) -> usize {
-        2 * self.segments
-    }
-
     /// [`FarField::b`] at four points at once, one per SIMD lane: each lane does the
     /// same operations in the same order as `b` and stops at its own degree, so the
     /// results are identical to four calls of `b`.
@@ -463,7 +445,7 @@ impl FarField {
             let d = x - self.centre;
             let r2 = d.norm_squared();
             let r = r2.sqrt();
-            let ok = !r.is_nan() && r > self.radius * 1.5;
+            let ok = !r.is_nan() && usable_at(r, self.radius);
             active[l] = ok;
             // Idle lanes compute at a harmless far point.
             let d = if ok {
@@ -492,7 +474,7 @@ impl FarField {
         let mut abs = f64x4::ZERO;
         let mut pending = active;
         for deg in 1..=self.order + 1 {
-            if idx.start[deg + 1] > self.budget() {
+            if !point_series_pays(idx.start[deg + 1], self.segments) {
                 break;
             }
             let nf = deg as f64;
@@ -524,7 +506,7 @@ impl FarField {
                 }
                 let value = Vec3::new(sx[l], sy[l], sz[l]) * MU0_OVER_4PI;
                 let noise = 256.0 * f64::EPSILON * ab[l] * MU0_OVER_4PI;
-                let allowed = SHARE * tolerance * value.norm();
+                let allowed = TOLERANCE_SHARE * tolerance * value.norm();
                 if self.b_bound(deg - 1, rs[l]) + noise <= allowed {
                     out[l] = Some(Expanded {
                         value,
@@ -548,7 +530,7 @@ impl FarField {
         let d = x - self.centre;
         let r2 = d.norm_squared();
         let r = r2.sqrt();
-        if r.is_nan() || r <= self.radius * 1.5 {
+        if r.is_nan() || !usable_at(r, self.radius) {
             return None;
         }
         let idx = &self.idx;
@@ -559,7 +541,7 @@ impl FarField {
         let mut sum = [0.0f64; 3];
         let mut abs = 0.0f64;
         for deg in 1..=self.order + 1 {
-            if idx.start[deg + 1] > self.budget() {
+            if !point_series_pays(idx.start[deg + 1], self.segments) {
                 return None;
             }
             idx.recur(a, deg, &dv, r2);
@@ -574,7 +556,7 @@ impl FarField {
             // B through degree `deg` uses the moments through degree q = deg − 1.
             let value = Vec3::new(sum[0], sum[1], sum[2]) * MU0_OVER_4PI;
             let noise = 256.0 * f64::EPSILON * abs * MU0_OVER_4PI;
-            let allowed = SHARE * tolerance * value.norm();
+            let allowed = TOLERANCE_SHARE * tolerance * value.norm();
             if self.b_bound(deg - 1, r) + noise <= allowed {
                 return Some(Expanded {
                     value,
@@ -738,12 +720,8 @@ impl<'a> Accelerated<'a> {
             && segments >= MIN_SEGMENTS
             && source
                 .bounding_sphere()
-                .is_some_and(|(c, r)| points.iter().any(|p| (p - c).norm() > 1.5 * r));
-        let order = if segments >= 4096 {
-            MAX_ORDER
-        } else {
-            SWEEP_ORDER
-        };
+                .is_some_and(|(c, r)| points.iter().any(|p| usable_at((p - c).norm(), r)));
+        let order = order_for_points(segments);
         let far = if use_far {
             FarField::with_order(source, order)
         } else {

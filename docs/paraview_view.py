@@ -1,4 +1,4 @@
-# paraview_view.py - renders the README picture docs/images/paraview-view.png: what the
+# paraview_view.py - renders docs/images/paraview-view.png, the picture in docs/paraview.md: what the
 # coaxial-loops demo looks like once its strayflux output is opened in ParaView.
 #
 # The picture shows the box map around-loops.vti cut by a Slice through the loops' common

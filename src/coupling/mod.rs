@@ -8,13 +8,13 @@
 use crate::error::SolveError;
 use crate::field::{FarField, FieldSource, Vec3};
 use crate::geometry::Edge;
-use crate::model::{Enclosure, Scene, Source, Victim, source_points, victim_points};
+use crate::model::{Scene, Source, Victim};
 use crate::quadrature::{Integral, integrate_unit};
-use crate::shield::spectral::Path;
-use crate::shield::{SHIELDING_CAP_DB, Scattered};
+use crate::shield::{FluxEffect, SHIELDING_CAP_DB};
 use crate::spectrum::{Line, same_frequency};
 use num_complex::Complex64;
 use std::f64::consts::{SQRT_2, TAU};
+use std::sync::Arc;
 
 /// Magnetic flux through the closed chain `edges` per ampere of `source` current, in
 /// Wb/A (= H for one turn), with relative accuracy `tolerance` of the integral's scale.
@@ -312,10 +312,9 @@ pub struct PairModel {
     pub flux: f64,
     /// Whether the free-space flux integral met the tolerance.
     pub converged: bool,
-    /// The sheets' reflected or transmitted part, if the scene has sheets.
-    pub scattered: Option<Scattered>,
-    /// Enclosures between the source and the victim.
-    pub enclosures: Vec<Enclosure>,
+    /// What the scene's shields do to this pair, applied in order (the sheets first,
+    /// then each enclosure between the two); empty without shields.
+    pub shields: Vec<Arc<dyn FluxEffect>>,
 }
 
 /// What a pair model may reuse of its source, passed in by the caller that owns the
@@ -344,67 +343,25 @@ impl PairModel {
             .unwrap_or_else(|| {
                 flux_per_amp_within(&source.conductors, sphere, &victim.edges, tolerance)
             });
-        // The source's vertices decide the side of a sheet and which enclosures hold
-        // it; without shields they are not gathered (a sweep builds a model per step).
-        let src_points = if scene.barrier.is_some() || !scene.enclosures.is_empty() {
-            source_points(source)
-        } else {
-            Vec::new()
-        };
-        let scattered = match &scene.barrier {
-            None => None,
-            Some(b) => {
-                let vpts = victim_points(&victim.edges);
-                let s_side = b
-                    .side_of(&src_points, &format!("source \"{}\"", source.id))
-                    .map_err(SolveError::Shield)?;
-                let v_side = b
-                    .side_of(&vpts, &format!("victim \"{}\"", victim.id))
-                    .map_err(SolveError::Shield)?;
-                Some(
-                    crate::shield::flux_model(
-                        b,
-                        &source.conductors,
-                        s_side,
-                        &victim.edges,
-                        &vpts,
-                        v_side,
-                        tolerance,
-                    )
-                    .map_err(|why| SolveError::Shield(format!("victim \"{}\" {why}", victim.id)))?,
-                )
-            }
-        };
-        let enclosures =
-            crate::shield::enclosures_between(&scene.enclosures, &victim.id, &src_points)
-                .into_iter()
-                .cloned()
-                .collect();
+        let shields = crate::shield::pair_effects(scene, source, victim, tolerance)?;
         Ok(PairModel {
             flux: phi.value,
             converged: phi.converged,
-            scattered,
-            enclosures,
+            shields,
         })
     }
 
     /// Whether any shield acts on this pair.
     pub fn is_shielded(&self) -> bool {
-        self.scattered.is_some() || !self.enclosures.is_empty()
+        !self.shields.is_empty()
     }
 
     /// Flux through one turn per ampere with the shields in place at `frequency` (Hz),
     /// Wb/A (complex: the shields shift its phase).
     pub fn shielded_flux(&self, frequency: f64) -> Complex64 {
-        let mut phi = match &self.scattered {
-            None => Complex64::new(self.flux, 0.0),
-            Some(s) => match s.path {
-                Path::Reflected => self.flux + s.at(frequency),
-                Path::Transmitted => s.at(frequency),
-            },
-        };
-        for e in &self.enclosures {
-            phi *= (-e.ln_factor(frequency)).exp();
+        let mut phi = Complex64::new(self.flux, 0.0);
+        for s in &self.shields {
+            phi = s.apply(self.flux, phi, frequency);
         }
         phi
     }

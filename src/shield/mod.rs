@@ -9,14 +9,88 @@ pub mod spectral;
 use crate::error::SolveError;
 use crate::field::{Accelerated, Conductors, Vec3};
 use crate::geometry::Edge;
-use crate::model::{Barrier, Enclosure, Layer, Scene, SolverOptions, source_points};
+use crate::model::{
+    Barrier, Enclosure, Layer, Scene, SolverOptions, Source, Victim, source_points, victim_points,
+};
 use num_complex::Complex64;
 use spectral::{Path, Plan, PlanError, SourceSpectrum, WORK_BUDGET};
 use std::f64::consts::TAU;
+use std::sync::Arc;
 
 /// Largest shielding reported, dB: beyond it the shielded EMF has underflowed double
 /// precision (nothing gets through).
 pub const SHIELDING_CAP_DB: f64 = 300.0;
+
+/// What one shield does to the flux of one source through one victim: the interface
+/// every shield model implements for couple and sweep. A pair's effects are applied in
+/// order, each to the flux the previous ones left; a new shield model (a finite plate,
+/// say) is a new implementation returned by [`pair_effects`].
+pub trait FluxEffect: std::fmt::Debug + Send + Sync {
+    /// The flux per ampere through one turn (Wb/A, complex) at `frequency` (Hz), from
+    /// the free-space flux `free` (Wb/A) and the flux `upstream` (Wb/A) that the
+    /// effects before this one left.
+    fn apply(&self, free: f64, upstream: Complex64, frequency: f64) -> Complex64;
+}
+
+impl FluxEffect for Scattered {
+    /// Reflected: the free-space flux plus the sheets' reflection. Transmitted: only
+    /// what comes through. The sheets come first, so `upstream` is the free flux.
+    fn apply(&self, free: f64, _upstream: Complex64, frequency: f64) -> Complex64 {
+        match self.path {
+            Path::Reflected => free + self.at(frequency),
+            Path::Transmitted => self.at(frequency),
+        }
+    }
+}
+
+impl FluxEffect for Enclosure {
+    /// The flux divided by the enclosure's shielding factor.
+    fn apply(&self, _free: f64, upstream: Complex64, frequency: f64) -> Complex64 {
+        upstream * (-self.ln_factor(frequency)).exp()
+    }
+}
+
+/// The effects of `scene`'s shields on `source` coupling into `victim`, in the order
+/// [`FluxEffect::apply`] takes them, to `tolerance` (relative); fails when a sheet
+/// cuts either or the planar sum cannot be planned for this placement.
+pub fn pair_effects(
+    scene: &Scene,
+    source: &Source,
+    victim: &Victim,
+    tolerance: f64,
+) -> Result<Vec<Arc<dyn FluxEffect>>, SolveError> {
+    let mut effects: Vec<Arc<dyn FluxEffect>> = Vec::new();
+    // The source's vertices decide the side of a sheet and which enclosures hold it;
+    // without shields they are not gathered (a sweep builds a model per step).
+    if scene.barrier.is_none() && scene.enclosures.is_empty() {
+        return Ok(effects);
+    }
+    let src_points = source_points(source);
+    if let Some(b) = &scene.barrier {
+        let vpts = victim_points(&victim.edges);
+        let s_side = b
+            .side_of(&src_points, &format!("source \"{}\"", source.id))
+            .map_err(SolveError::Shield)?;
+        let v_side = b
+            .side_of(&vpts, &format!("victim \"{}\"", victim.id))
+            .map_err(SolveError::Shield)?;
+        let scattered = flux_model(
+            b,
+            &source.conductors,
+            s_side,
+            &victim.edges,
+            &vpts,
+            v_side,
+            tolerance,
+        )
+        .map_err(|why| SolveError::Shield(format!("victim \"{}\" {why}", victim.id)))?;
+        effects.push(Arc::new(scattered));
+    }
+    for e in enclosures_between(&scene.enclosures, &victim.id, &src_points) {
+        effects.push(Arc::new(e.clone()));
+    }
+    Ok(effects)
+}
 
 /// The frequency-independent part of what the stack does to one source–target pair:
 /// one real term per radial node, to be weighted by the layers' response at each line.

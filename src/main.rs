@@ -149,8 +149,14 @@ fn run_map(
         })?,
         None => strayflux::run::map::default_memory_limit(),
     };
+    with_progress(|progress| app::map(scene, only, out, limit, exact, progress))
+}
+
+/// Runs `work` with a progress callback `(done, total)` that drives a bar on stderr
+/// when stderr is a terminal; the bar is cleared afterwards.
+fn with_progress<T>(work: impl FnOnce(&(dyn Fn(usize, usize) + Sync)) -> T) -> T {
     let bar = progress_bar();
-    let result = app::map(scene, only, out, limit, exact, &|done, total| {
+    let result = work(&|done, total| {
         if let Some(b) = &bar {
             b.set_length(total as u64);
             b.set_position(done as u64);
@@ -195,7 +201,12 @@ fn main() -> ExitCode {
         eprintln!("strayflux: interrupted; no partial output was left under a final name");
         std::process::exit(130);
     });
-    let result = match &cli.command {
+    finish(dispatch(&cli.command))
+}
+
+/// Runs one command.
+fn dispatch(command: &Command) -> Result<app::Outcome, strayflux::Error> {
+    match command {
         Command::Check { scene, json } => app::check(scene, *json),
         Command::Couple {
             scene,
@@ -216,26 +227,9 @@ fn main() -> ExitCode {
             out,
             json,
             exact,
-        } => {
-            let bar = progress_bar();
-            let result = app::sweep(
-                scene,
-                only.as_deref(),
-                out,
-                *json,
-                *exact,
-                &|done, total| {
-                    if let Some(b) = &bar {
-                        b.set_length(total as u64);
-                        b.set_position(done as u64);
-                    }
-                },
-            );
-            if let Some(b) = bar {
-                b.finish_and_clear();
-            }
-            result
-        }
+        } => with_progress(|progress| {
+            app::sweep(scene, only.as_deref(), out, *json, *exact, progress)
+        }),
         Command::Probe {
             scene,
             at,
@@ -244,7 +238,11 @@ fn main() -> ExitCode {
             exact,
         } => app::probe_points(scene, at, points.as_deref(), *json, *exact),
         Command::Materials { frequency } => app::materials(frequency.as_deref()),
-    };
+    }
+}
+
+/// Prints a command's warnings and output, or its error, and gives the exit status.
+fn finish(result: Result<app::Outcome, strayflux::Error>) -> ExitCode {
     match result {
         Ok(outcome) => {
             for w in &outcome.warnings {

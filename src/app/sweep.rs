@@ -4,9 +4,11 @@ use super::Outcome;
 use crate::Scene;
 use crate::error::{Error, SolveError};
 use crate::model::SolverOptions;
+use crate::model::SweepSpec;
 use crate::output::{csv, files, json, plot, text};
 use crate::run::Solver;
-use std::path::Path;
+use crate::run::sweep::SweepResult;
+use std::path::{Path, PathBuf};
 
 /// `sweep SCENE [--only ID] [--out DIR]`: run the scene's sweeps, write `<id>.csv` and
 /// `<id>.svg` into `out_dir`, report the safe distance. `progress` is called once per
@@ -21,7 +23,44 @@ pub fn sweep(
 ) -> Result<Outcome, Error> {
     let scene = Scene::load(path)?;
     let solver = Solver::new(&scene, SolverOptions::for_scene(&scene).exact_if(exact));
-    let chosen: Vec<&crate::model::SweepSpec> = match only {
+    let chosen = choose_sweeps(&scene, path, only)?;
+    files::ensure_dir(out_dir)?;
+    let total_steps: usize = chosen.iter().map(|s| s.steps * (1 + s.compare.len())).sum();
+    let done = std::sync::atomic::AtomicUsize::new(0);
+    let tick = || {
+        let n = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
+        progress(n, total_steps);
+    };
+    let results: Vec<SweepResult> = chosen
+        .iter()
+        .map(|s| crate::run::sweep::run(&scene, &solver, s, &tick))
+        .collect::<Result<_, SolveError>>()?;
+    let mut warnings = scene.warnings.clone();
+    let outputs = sweep_files(&scene, &results, out_dir, &mut warnings)?;
+    let mut written = Vec::new();
+    for (p, text) in &outputs {
+        files::write_atomic(p, text.as_bytes())?;
+        written.push(p.display().to_string());
+    }
+    let stdout = if as_json {
+        json::sweeps(&results)
+    } else {
+        text::sweeps(&scene, &results, &written)
+    };
+    Ok(Outcome {
+        stdout,
+        warnings,
+        exit: 0,
+    })
+}
+
+/// The scene's sweeps that `only` (an id) selects, or all of them; an error when none.
+fn choose_sweeps<'a>(
+    scene: &'a Scene,
+    path: &Path,
+    only: Option<&str>,
+) -> Result<Vec<&'a SweepSpec>, Error> {
+    let chosen: Vec<&SweepSpec> = match only {
         Some(id) => {
             let s: Vec<_> = scene.sweeps.iter().filter(|s| s.id == id).collect();
             if s.is_empty() {
@@ -45,20 +84,20 @@ pub fn sweep(
             path.display()
         )));
     }
-    files::ensure_dir(out_dir)?;
-    let total_steps: usize = chosen.iter().map(|s| s.steps * (1 + s.compare.len())).sum();
-    let done = std::sync::atomic::AtomicUsize::new(0);
-    let tick = || {
-        let n = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
-        progress(n, total_steps);
-    };
-    let results: Vec<crate::run::sweep::SweepResult> = chosen
-        .iter()
-        .map(|s| crate::run::sweep::run(&scene, &solver, s, &tick))
-        .collect::<Result<_, SolveError>>()?;
+    Ok(chosen)
+}
+
+/// The files a run of sweeps writes into `out_dir`, with their contents: each sweep's
+/// CSV and SVG (a plot that cannot be drawn becomes a warning), then `scene.vtp` so
+/// that the sweep can be looked at in ParaView.
+fn sweep_files(
+    scene: &Scene,
+    results: &[SweepResult],
+    out_dir: &Path,
+    warnings: &mut Vec<String>,
+) -> Result<Vec<(PathBuf, String)>, Error> {
     let mut outputs = Vec::new();
-    let mut warnings = scene.warnings.clone();
-    for r in &results {
+    for r in results {
         let victim = &scene.victims[r.spec.victim].id;
         outputs.push((
             out_dir.join(format!("{}.csv", r.spec.id)),
@@ -69,22 +108,7 @@ pub fn sweep(
             Err(why) => warnings.push(format!("sweep \"{}\": {why}", r.spec.id)),
         }
     }
-    // The scene's geometry too, so the sweep can be looked at in ParaView.
-    let vtp = crate::output::vtk::scene_polydata(&scene, 0.005).map_err(Error::Run)?;
+    let vtp = crate::output::vtk::scene_polydata(scene, 0.005).map_err(Error::Run)?;
     outputs.push((out_dir.join("scene.vtp"), vtp));
-    let mut written = Vec::new();
-    for (p, text) in &outputs {
-        files::write_atomic(p, text.as_bytes())?;
-        written.push(p.display().to_string());
-    }
-    let stdout = if as_json {
-        json::sweeps(&results)
-    } else {
-        text::sweeps(&scene, &results, &written)
-    };
-    Ok(Outcome {
-        stdout,
-        warnings,
-        exit: 0,
-    })
+    Ok(outputs)
 }

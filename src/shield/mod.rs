@@ -283,21 +283,8 @@ pub fn shielded_lines(
     frequencies: &[f64],
     tick: &(dyn Fn(usize) + Sync),
 ) -> Result<Vec<Vec<[Complex64; 3]>>, SolveError> {
-    use crate::spectrum::same_frequency;
     let mut out = vec![vec![[Complex64::new(0.0, 0.0); 3]; points.len()]; frequencies.len()];
-    let sides: Vec<bool> = match &scene.barrier {
-        None => vec![false; points.len()],
-        Some(b) => points
-            .iter()
-            .map(|p| {
-                b.side_of(
-                    std::slice::from_ref(p),
-                    &format!("the point {}", crate::units::mm_point(p)),
-                )
-            })
-            .collect::<Result<_, String>>()
-            .map_err(SolveError::Shield)?,
-    };
+    let sides = point_sides(scene, points)?;
     for s in &scene.sources {
         let evaluator =
             Accelerated::for_points(&s.conductors, points, options.tolerance, options.exact());
@@ -327,31 +314,77 @@ pub fn shielded_lines(
                 (s_side, Some(f))
             }
         };
-        let boxes: Vec<&Enclosure> = scene
-            .enclosures
+        let parts = SourceParts {
+            free: &free,
+            // Free space reaches the points on the source's side of the sheets only.
+            sees_free: sides
+                .iter()
+                .map(|&side| scene.barrier.is_none() || side == s_side)
+                .collect(),
+            scattered: scattered.as_deref(),
+            boxes: scene
+                .enclosures
+                .iter()
+                .filter(|e| !src_points.iter().any(|p| e.holds(p)))
+                .collect(),
+        };
+        parts.add_lines(s, points, frequencies, &mut out);
+    }
+    Ok(out)
+}
+
+/// Each point's side of the scene's sheets (false without sheets); fails for a point
+/// inside or between them.
+fn point_sides(scene: &Scene, points: &[Vec3]) -> Result<Vec<bool>, SolveError> {
+    match &scene.barrier {
+        None => Ok(vec![false; points.len()]),
+        Some(b) => points
             .iter()
-            .filter(|e| !src_points.iter().any(|p| e.holds(p)))
-            .collect();
+            .map(|p| {
+                b.side_of(
+                    std::slice::from_ref(p),
+                    &format!("the point {}", crate::units::mm_point(p)),
+                )
+            })
+            .collect::<Result<_, String>>()
+            .map_err(SolveError::Shield),
+    }
+}
+
+/// One source's field at the points, in parts: free space, the sheets' scattered
+/// field and the enclosures that do not hold the source.
+struct SourceParts<'a> {
+    /// Free-space B per ampere (T/A) `[point]`.
+    free: &'a [Vec3],
+    /// Whether the free-space field reaches each point.
+    sees_free: Vec<bool>,
+    /// The sheets' scattered B per ampere (T/A, complex) `[point][frequency]`.
+    scattered: Option<&'a [Vec<[Complex64; 3]>]>,
+    /// Enclosures that do not hold the source.
+    boxes: Vec<&'a Enclosure>,
+}
+
+impl SourceParts<'_> {
+    /// Adds the B phasors (T peak) of `source`'s lines at `frequencies` (Hz) to `out`
+    /// `[frequency][point]`.
+    fn add_lines(
+        &self,
+        source: &Source,
+        points: &[Vec3],
+        frequencies: &[f64],
+        out: &mut [Vec<[Complex64; 3]>],
+    ) {
+        use crate::spectrum::same_frequency;
         for (fi, &f) in frequencies.iter().enumerate() {
-            let factors: Vec<Complex64> = boxes.iter().map(|e| (-e.ln_factor(f)).exp()).collect();
-            for l in s.lines.iter().filter(|l| same_frequency(l.frequency, f)) {
+            let factors: Vec<Complex64> =
+                self.boxes.iter().map(|e| (-e.ln_factor(f)).exp()).collect();
+            for l in source
+                .lines
+                .iter()
+                .filter(|l| same_frequency(l.frequency, f))
+            {
                 for (pi, p) in points.iter().enumerate() {
-                    let mut b = [Complex64::new(0.0, 0.0); 3];
-                    if scene.barrier.is_none() || sides[pi] == s_side {
-                        for c in 0..3 {
-                            b[c] += free[pi][c];
-                        }
-                    }
-                    if let Some(sc) = &scattered {
-                        for c in 0..3 {
-                            b[c] += sc[pi][fi][c];
-                        }
-                    }
-                    for (e, x) in boxes.iter().zip(&factors) {
-                        if e.holds(p) {
-                            b.iter_mut().for_each(|v| *v *= x);
-                        }
-                    }
+                    let b = self.per_amp(pi, fi, p, &factors);
                     for c in 0..3 {
                         out[fi][pi][c] += l.current * b[c];
                     }
@@ -359,5 +392,26 @@ pub fn shielded_lines(
             }
         }
     }
-    Ok(out)
+
+    /// B per ampere (T/A, complex) at point `pi` (`p`, m) for frequency index `fi`,
+    /// with the enclosures' `factors` at that frequency.
+    fn per_amp(&self, pi: usize, fi: usize, p: &Vec3, factors: &[Complex64]) -> [Complex64; 3] {
+        let mut b = [Complex64::new(0.0, 0.0); 3];
+        if self.sees_free[pi] {
+            for (bc, fc) in b.iter_mut().zip(self.free[pi].iter()) {
+                *bc += fc;
+            }
+        }
+        if let Some(sc) = self.scattered {
+            for (bc, sc) in b.iter_mut().zip(&sc[pi][fi]) {
+                *bc += sc;
+            }
+        }
+        for (e, x) in self.boxes.iter().zip(factors) {
+            if e.holds(p) {
+                b.iter_mut().for_each(|v| *v *= x);
+            }
+        }
+        b
+    }
 }

@@ -11,7 +11,8 @@
 //!   which take their quotients by Newton steps on the multiply units.
 //! * `sweep/1000steps-2000seg`: a 1000-step distance sweep of a 10 × 5 mm rectangular
 //!   victim past a 2000-segment polygon source, the far-field moments built afresh in
-//!   every run (the target: 0.1 s); `-exact` the same with direct sums only.
+//!   every run (target 0.1 s, see docs/performance.md); `-exact` the same with direct
+//!   sums only.
 //! * `shielded/couple-demo`: a shielded `couple` of one victim (see [`shielded`]).
 
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
@@ -235,8 +236,9 @@ fn sweep(c: &mut Criterion) {
 }
 
 /// `shielded/couple-demo`: `couple` of the demo scene `scenes/shield-options.toml` (a
-/// 4400-segment helix, a 20 × 8 mm victim, 1 mm aluminium between; the target:
-/// under a second), and the same at the default tolerance 1e-6.
+/// 4400-segment helix, a 20 × 8 mm victim, 1 mm aluminium between; target: under a
+/// second, measurements in docs/performance.md), and the same at the default tolerance
+/// 1e-6.
 fn shielded(c: &mut Criterion) {
     let path = concat!(env!("CARGO_MANIFEST_DIR"), "/scenes/shield-options.toml");
     let text = std::fs::read_to_string(path).expect("demo scene");

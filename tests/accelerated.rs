@@ -1,4 +1,4 @@
-//! The far-field acceleration (src/field/multipole.rs) against the direct sums it
+//! The far-field acceleration (src/field/multipole/) against the direct sums it
 //! replaces, over random geometries with fixed seeds: wherever the series is used it
 //! must be within the tolerance of the direct Biot–Savart sum (which the physics tests
 //! check against published closed forms), and within its own proven bound; its leading

@@ -606,7 +606,7 @@ fn sheets() -> Vec<(&'static str, f64)> {
 fn loops_through_a_sheet_match_the_hankel_integral() {
     // M_shielded = μ0 π a b ∫ T(k) J1(ka) J1(kb) e^{−k(h1+h2)} dk (Hankel form of the
     // coaxial-loop coupling, Smythe ch. 7, with the slab's T from the closed form).
-    // Acceptance: 0.1 dB in shielding (the bar); asserted on the complex M as
+    // Acceptance: 0.1 dB in shielding (the project's bar); asserted on the complex M as
     // |ΔM|/|M| ≤ 0.0116 (= 10^{0.1/20} − 1), which also bounds the phase error, and on
     // the reported shielding_db where it is below the 300 dB cap. Also at the scene
     // tolerance, 1e-6 relative on the complex M: the solver's stated accuracy, which a

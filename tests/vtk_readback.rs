@@ -95,7 +95,8 @@ impl MapDef {
         )
     }
 
-    /// Cells per axis as SPEC's `[[map]]` defines them: `cells` as given, or each extent
+    /// Cells per axis as `[[map]]` in docs/scene-reference.md defines them: `cells` as
+    /// given, or each extent
     /// split into the whole number of cells nearest to extent / step (0 on a flat axis).
     fn cells(&self) -> [usize; 3] {
         match self.grid {
@@ -178,8 +179,8 @@ impl Case {
             // B at a grid point is the probe's B at that point: the same double-precision
             // arithmetic, so agreement to rounding.
             "probe_rel_tol": 1e-12,
-            // SPEC [solver]: the default tolerance, 1e-6, is the relative accuracy target
-            // for fields.
+            // `[solver]` in docs/scene-reference.md: the default tolerance, 1e-6, is the
+            // relative accuracy target for fields.
             "closed_form_rel_tol": 1e-6,
         });
         let path = self.out.with_extension("json");

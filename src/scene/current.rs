@@ -6,7 +6,7 @@ use crate::spectrum::{Line, same_frequency};
 use crate::units::{Dimension, format_si};
 use crate::waveform::{self, Amplitude, LineCount, Waveform};
 
-/// Waveforms the spec names.
+/// Waveforms a scene may name (docs/scene-reference.md, "Currents and waveforms").
 const WAVEFORMS: &[&str] = &["sine", "square", "triangle", "sawtooth", "trapezoid"];
 
 /// Edges that fit the period to this fraction of it are accepted (unit conversions

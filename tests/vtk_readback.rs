@@ -1,12 +1,14 @@
 //! Field maps read back by readers that share no code with strayflux: Python's `vtk`
-//! package (tests/vtk/check_maps.py, VTK's own XML readers) and, when installed,
-//! ParaView's pvpython (tests/vtk/check_paraview.py). The scenes are written here, the
+//! package (tests/vtk/check_maps.py, VTK's own XML readers) and ParaView's pvpython
+//! (tests/vtk/check_paraview.py). The scenes are written here, the
 //! binary writes the maps, and the scripts compare the files with `strayflux probe`,
 //! with the closed-form field of a circular loop, and with the geometry below.
 //!
-//! Without `python3 -c "import vtk"` the readback test prints a skip message and
-//! passes, unless STRAYFLUX_REQUIRE_VTK=1 (as in .ci/run), when it fails. The last
-//! test needs no reader: bad `[[map]]` input exits 2 with one located line and writes
+//! The readback test fails when `python3 -c "import vtk"` fails (.ci/run installs the
+//! package from PyPI). The ParaView test is ignored by default, since CI does not
+//! install ParaView; run it with `cargo test --test vtk_readback -- --ignored` after
+//! installing Debian's `paraview`; it fails when pvpython is missing. The last test
+//! needs no reader: bad `[[map]]` input exits 2 with one located line and writes
 //! nothing.
 
 use serde_json::{Value, json};
@@ -381,16 +383,10 @@ fn python_has_vtk() -> bool {
 
 #[test]
 fn vtk_package_reads_maps_and_scene_back_as_written() {
-    if !python_has_vtk() {
-        let required = std::env::var("STRAYFLUX_REQUIRE_VTK").is_ok_and(|v| v == "1");
-        assert!(
-            !required,
-            "STRAYFLUX_REQUIRE_VTK=1 but `python3 -c \"import vtk\"` fails: \
-             install it with `python3 -m pip install vtk`"
-        );
-        println!("skipped: Python's vtk package is not installed (python3 -m pip install vtk)");
-        return;
-    }
+    assert!(
+        python_has_vtk(),
+        "`python3 -c \"import vtk\"` fails: install the reader with `python3 -m pip install vtk`"
+    );
     let mut failures = Vec::new();
     for case in [loop_case("vtk"), two_source_case("vtk")] {
         let exp = case.write_maps();
@@ -411,11 +407,12 @@ fn on_path(program: &str) -> bool {
 }
 
 #[test]
+#[ignore = "needs ParaView's pvpython (Debian package paraview); run with cargo test --test vtk_readback -- --ignored"]
 fn paraview_opens_maps_collection_and_scene() {
-    if !on_path("pvpython") {
-        println!("skipped: pvpython not installed");
-        return;
-    }
+    assert!(
+        on_path("pvpython"),
+        "pvpython is not on PATH: install ParaView (Debian package paraview)"
+    );
     let mut failures = Vec::new();
     for case in [loop_case("paraview"), two_source_case("paraview")] {
         let exp = case.write_maps();

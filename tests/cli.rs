@@ -189,7 +189,7 @@ fn probe_reads_points_with_units_and_csv_files() {
 }
 
 #[test]
-fn check_json_has_the_contract_keys_and_values() {
+fn check_json_has_the_documented_keys_and_values() {
     let path = scene("check.toml", &coaxial_scene(10.0, "1 V"));
     let doc = stdout_json(&run(&["check", path.to_str().unwrap(), "--json"]));
     let s = &doc["sources"][0];

@@ -1,7 +1,7 @@
 //! The winding kinds, `file` sources and `calibrate` through the command line: located
 //! one-line errors for bad geometry (exit 2), CSV paths and rows, and the calibration
-//! round trip. Numbers are checked against published closed forms or the contract's own
-//! definitions, never against the tool's earlier output.
+//! round trip. Numbers are checked against published closed forms or the definitions the
+//! scene reference (docs/scene-reference.md) gives, never against the tool's earlier output.
 
 mod common;
 

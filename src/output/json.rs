@@ -1,5 +1,5 @@
-//! Machine-readable output: one JSON document per command, keys as in the interface
-//! contract (snake_case, unit in the name).
+//! Machine-readable output: one JSON document per command, snake_case keys with the
+//! unit in the name (`total_emf_v_rms`, `mutual_inductance_h`).
 
 use crate::Scene;
 use crate::run::couple::VictimReport;

@@ -1,0 +1,205 @@
+//! Human-readable reports for the terminal.
+
+use crate::Scene;
+use crate::field::Vec3;
+use crate::run::couple::VictimReport;
+use crate::run::probe::ProbePoint;
+use crate::units::{format_area, format_si};
+use std::fmt::Write;
+
+mod check;
+mod sweep;
+
+pub use check::check;
+pub use sweep::sweeps;
+
+/// A value with its SI unit, four significant digits.
+fn si(x: f64, unit: &str) -> String {
+    format_si(x, unit, 4)
+}
+
+/// The report's first line: the command and the scene title.
+fn title(out: &mut String, command: &str, scene: &Scene) {
+    if scene.title.is_empty() {
+        let _ = writeln!(out, "{command}");
+    } else {
+        let _ = writeln!(out, "{command}: {}", scene.title);
+    }
+}
+
+/// `couple`: per victim, per source, per line, then the total and the verdict.
+pub fn couple(scene: &Scene, reports: &[VictimReport]) -> String {
+    let mut out = String::new();
+    title(&mut out, "coupling", scene);
+    for (r, v) in reports.iter().zip(&scene.victims) {
+        let _ = writeln!(
+            out,
+            "\nvictim {}  ({}, {} turn{}, {} per turn)",
+            r.id,
+            v.kind,
+            v.turns,
+            plural(v.turns),
+            format_area(v.area, 4)
+        );
+        let shielded = crate::shield::scene_is_shielded(scene);
+        for s in &r.sources {
+            let _ = writeln!(
+                out,
+                "  from {}: mutual inductance M = {}{}",
+                s.id,
+                si(s.mutual_inductance, "H"),
+                if shielded { " without shields" } else { "" }
+            );
+            let _ = write!(
+                out,
+                "    {:>12}  {:>12}  {:>12}  {:>12}  {:>8}",
+                "frequency", "current pk", "EMF pk", "EMF rms", "phase"
+            );
+            let _ = writeln!(out, "{}", if shielded { "  shielding" } else { "" });
+            for l in &s.lines {
+                let phase = if l.emf.norm() > 0.0 {
+                    format!("{:>7.2}°", l.emf.arg().to_degrees())
+                } else {
+                    format!("{:>8}", "-")
+                };
+                let _ = write!(
+                    out,
+                    "    {:>12}  {:>12}  {:>12}  {:>12}  {phase}",
+                    si(l.frequency, "Hz"),
+                    si(l.current.norm(), "A"),
+                    si(l.emf.norm(), "V"),
+                    si(l.emf.norm() / std::f64::consts::SQRT_2, "V"),
+                );
+                if shielded {
+                    let _ = write!(out, "  {:>7.1} dB", l.shielding_db);
+                }
+                let _ = writeln!(out);
+            }
+        }
+        let _ = write!(out, "  total EMF {} rms", si(r.total_rms, "V"));
+        match (r.limit, r.margin_db(), r.pass()) {
+            (Some(l), Some(m), Some(p)) => {
+                let verdict = if p { "within limit" } else { "OVER LIMIT" };
+                let _ = writeln!(
+                    out,
+                    "; limit {} rms; margin {:+.1} dB: {verdict}",
+                    si(l, "V"),
+                    m
+                );
+            }
+            _ => {
+                let _ = writeln!(out, "; no limit set");
+            }
+        }
+        if let (Some(vl), Some(r_load)) = (r.load_rms, v.load) {
+            let _ = writeln!(
+                out,
+                "  across the {} load (through the loop's {} self-inductance): {} rms",
+                si(r_load, "Ω"),
+                si(v.self_inductance, "H"),
+                si(vl, "V")
+            );
+        }
+    }
+    if reports.is_empty() {
+        let _ = writeln!(out, "\nthe scene has no [[victim]]: nothing to couple");
+    }
+    out
+}
+
+/// `probe`: one block per point.
+pub fn probe(points: &[ProbePoint]) -> String {
+    let mut out = String::new();
+    for p in points {
+        let _ = writeln!(out, "point {}", fmt_point(&p.position));
+        let _ = writeln!(
+            out,
+            "  {:>12}  {:>12}  {:>24}  {:>24}  {:>24}",
+            "frequency", "|B| rms", "Bx pk (re, im)", "By pk (re, im)", "Bz pk (re, im)"
+        );
+        for l in &p.lines {
+            let comp = |k: usize| format!("{:+.4e}, {:+.4e}", l.b[k].re, l.b[k].im);
+            let _ = writeln!(
+                out,
+                "  {:>12}  {:>12}  {:>24}  {:>24}  {:>24}",
+                si(l.frequency, "Hz"),
+                si(l.b_rms(), "T"),
+                comp(0),
+                comp(1),
+                comp(2)
+            );
+        }
+    }
+    out
+}
+
+/// A point (m) as `(x, y, z) m`, six decimals.
+fn fmt_point(p: &crate::field::Vec3) -> String {
+    format!("({:.6}, {:.6}, {:.6}) m", p.x, p.y, p.z)
+}
+
+/// A unit direction as `[x, y, z]` to three decimals, without "-0.000".
+fn fmt_dir(d: &Vec3) -> String {
+    let c = |x: f64| if x.abs() < 5e-4 { 0.0 } else { x };
+    format!("[{:.3}, {:.3}, {:.3}]", c(d.x), c(d.y), c(d.z))
+}
+
+/// c/n, or 0 when n is 0.
+fn safe_unit(c: f64, n: f64) -> f64 {
+    if n > 0.0 { c / n } else { 0.0 }
+}
+
+/// "s" unless `n` is 1.
+fn plural(n: f64) -> &'static str {
+    if n == 1.0 { "" } else { "s" }
+}
+
+/// `materials`: one row per material with its skin depth at each of `freqs` (Hz),
+/// then where each value comes from and the permeability caution.
+pub fn materials(list: &[crate::model::material::Material], freqs: &[f64]) -> String {
+    use crate::model::material::IACS;
+    let mut out = String::new();
+    let _ = write!(
+        out,
+        "{:<10}  {:>12}  {:>7}  {:>7}",
+        "material", "σ", "% IACS", "μr"
+    );
+    for f in freqs {
+        let _ = write!(out, "  {:>12}", format!("δ @ {}", format_si(*f, "Hz", 3)));
+    }
+    let _ = writeln!(out);
+    for m in list {
+        let _ = write!(
+            out,
+            "{:<10}  {:>12}  {:>7.1}  {:>7}",
+            m.name,
+            si(m.conductivity, "S/m"),
+            100.0 * m.conductivity / IACS,
+            m.relative_permeability
+        );
+        for f in freqs {
+            let _ = write!(out, "  {:>12}", si(m.skin_depth(*f), "m"));
+        }
+        let _ = writeln!(out);
+    }
+    let _ = writeln!(out, "\nskin depth δ = 1/√(π f μ0 μr σ)\nsources:");
+    for m in list {
+        let _ = writeln!(out, "  {}: {}", m.name, m.source);
+    }
+    let varies: Vec<&str> = list
+        .iter()
+        .filter(|m| m.permeability_varies)
+        .map(|m| m.name.as_str())
+        .collect();
+    if !varies.is_empty() {
+        let _ = writeln!(
+            out,
+            "\ncaution: the permeability of {} depends strongly on the field level, the \
+             frequency and the heat treatment (bending and machining lower it); the figure \
+             above is a low-field, low-frequency value. Use the supplier's data, or \
+             {{ conductivity, relative_permeability }} in the scene, for a real design.",
+            varies.join(" and ")
+        );
+    }
+    out
+}

@@ -1,7 +1,7 @@
 //! `[[map]]` tables → validated field-map grids.
 
 use super::common::parse_id;
-use super::reader::Table;
+use super::reader::{Table, Value};
 use crate::error::InputError;
 use crate::field::Vec3;
 use crate::model::map::{MapLines, MapSpec};
@@ -17,6 +17,8 @@ fn as_vtk_reads(x: f64) -> f64 {
 /// More points than this on one map is refused before any memory estimate (1e9).
 const MAX_POINTS: f64 = 1e9;
 
+/// Builds a [`MapSpec`] from one `[[map]]` table; `line_count` is the number of
+/// distinct line frequencies over the scene's sources.
 pub(crate) fn parse(t: &Table<'_, '_>, line_count: usize) -> Result<MapSpec, InputError> {
     let id = parse_id(t)?;
     let kv = t.require("kind", "box or plane")?;
@@ -28,6 +30,35 @@ pub(crate) fn parse(t: &Table<'_, '_>, line_count: usize) -> Result<MapSpec, Inp
     let min = min_v.vector(Dimension::Length)?;
     let max_v = t.require("max", "the upper corner [x, y, z]")?;
     let max = max_v.vector(Dimension::Length)?;
+    check_extent(kind, &min, &max, &max_v)?;
+    let cells = grid_cells(t, &min, &max)?;
+    let origin = min.map(as_vtk_reads);
+    let mut spacing = Vec3::zeros();
+    for a in 0..3 {
+        if cells[a] > 0 {
+            spacing[a] = as_vtk_reads((max[a] - min[a]) / cells[a] as f64);
+        }
+    }
+    let lines = parse_lines(t, line_count)?;
+    t.finish(&["step", "cells"], &format!("a {kind} map"))?;
+    Ok(MapSpec {
+        id,
+        origin,
+        spacing,
+        points: [cells[0] + 1, cells[1] + 1, cells[2] + 1],
+        plane: kind == "plane",
+        lines,
+    })
+}
+
+/// `max` no lower than `min` on any axis, and flat on no axis for a box, on exactly
+/// one for a plane.
+fn check_extent(
+    kind: &str,
+    min: &Vec3,
+    max: &Vec3,
+    max_v: &Value<'_, '_>,
+) -> Result<(), InputError> {
     let mut flat = 0;
     for a in 0..3 {
         if max[a] < min[a] {
@@ -41,26 +72,21 @@ pub(crate) fn parse(t: &Table<'_, '_>, line_count: usize) -> Result<MapSpec, Inp
         }
     }
     match (kind, flat) {
-        ("box", 0) | ("plane", 1) => {}
+        ("box", 0) | ("plane", 1) => Ok(()),
         ("box", _) => {
-            return Err(max_v
-                .error("a box needs max > min on every axis (for a plane, use kind = \"plane\")"));
+            Err(max_v
+                .error("a box needs max > min on every axis (for a plane, use kind = \"plane\")"))
         }
         _ => {
-            return Err(max_v.error(
-                "a plane needs min == max on exactly one axis and max > min on the others",
-            ));
+            Err(max_v
+                .error("a plane needs min == max on exactly one axis and max > min on the others"))
         }
     }
-    let cells = grid_cells(t, &min, &max)?;
-    let origin = min.map(as_vtk_reads);
-    let mut spacing = Vec3::zeros();
-    for a in 0..3 {
-        if cells[a] > 0 {
-            spacing[a] = as_vtk_reads((max[a] - min[a]) / cells[a] as f64);
-        }
-    }
-    let lines = match t.get("line") {
+}
+
+/// The optional `line`: a line number (1 = fundamental, the default) or "all".
+fn parse_lines(t: &Table<'_, '_>, line_count: usize) -> Result<MapLines, InputError> {
+    Ok(match t.get("line") {
         None => MapLines::One(1),
         Some(v) => match v.string() {
             Ok("all") => MapLines::All,
@@ -80,15 +106,6 @@ pub(crate) fn parse(t: &Table<'_, '_>, line_count: usize) -> Result<MapSpec, Inp
                 MapLines::One(n)
             }
         },
-    };
-    t.finish(&["step", "cells"], &format!("a {kind} map"))?;
-    Ok(MapSpec {
-        id,
-        origin,
-        spacing,
-        points: [cells[0] + 1, cells[1] + 1, cells[2] + 1],
-        plane: kind == "plane",
-        lines,
     })
 }
 

@@ -7,7 +7,7 @@ use super::current::{CurrentContext, parse_current};
 use super::reader::{Table, Value};
 use super::windings::parse_winding;
 use crate::error::InputError;
-use crate::field::{Conductors, FieldSource, Vec3};
+use crate::field::{Conductors, FieldSource, Polyline, Vec3};
 use crate::geometry::{
     circle_source, dipole_source, polygon_source, polyline_source, rectangle_corners,
 };
@@ -50,6 +50,7 @@ const GEOMETRY_KEYS: &[&str] = &[
     "calibrate",
 ];
 
+/// Builds a [`Source`] from one `[[source]]` table.
 pub(crate) fn parse(
     t: &Table<'_, '_>,
     ctx: &Context,
@@ -72,53 +73,67 @@ pub(crate) fn parse(
         Some(v) => v.positive(Dimension::Length)?,
         None => ctx.wire_radius,
     };
-    let mut conductors = match kind {
-        "loop" => {
-            let r = t.require("radius", "the loop radius, e.g. \"8 mm\"")?;
-            let radius = r.positive(Dimension::Length)?;
-            check_wire(&r, radius, wire_radius)?;
-            Conductors {
-                wires: vec![circle_source(&frame, radius, ctx.tolerance, wire_radius)],
-                dipoles: vec![],
-            }
-        }
-        "rectangle" => {
-            let w = t.require("width", "the side along local x")?;
-            let h = t.require("height", "the side along local y")?;
-            let (wv, hv) = (
-                w.positive(Dimension::Length)?,
-                h.positive(Dimension::Length)?,
-            );
-            check_wire(&w, wv, wire_radius)?;
-            check_wire(&h, hv, wire_radius)?;
-            Conductors {
-                wires: vec![polygon_source(
-                    &frame,
-                    &rectangle_corners(wv, hv),
-                    wire_radius,
-                )],
-                dipoles: vec![],
-            }
-        }
+    let place = Placement {
+        frame: &frame,
+        ctx,
+        wire_radius,
+        id: &id,
+    };
+    let mut conductors = parse_conductors(t, kind, &place, warnings)?;
+    apply_turns(t, kind, &mut conductors)?;
+    let calibrate = t.get("calibrate");
+    let mut lines = parse_lines(t, &id, ctx, calibrate.is_none(), warnings)?;
+    let calibration = match calibrate {
+        Some(c) => Some(calibrate_lines(&c, &conductors, &mut lines)?),
+        None => None,
+    };
+    t.finish(GEOMETRY_KEYS, &format!("a source of kind \"{kind}\""))?;
+    check_finite(t, &lines)?;
+    Ok(Source {
+        id,
+        kind: SourceKind::from_name(kind)
+            .ok_or_else(|| t.error_at("kind", format!("unknown source kind \"{kind}\"")))?,
+        frame,
+        conductors,
+        lines,
+        calibration,
+    })
+}
+
+/// What every kind's geometry is built against: the source's frame, the scene's
+/// context, the wire radius (m) and the id (for warnings).
+struct Placement<'p> {
+    frame: &'p crate::geometry::Frame,
+    ctx: &'p Context,
+    wire_radius: f64,
+    id: &'p str,
+}
+
+/// The conductors of a source of `kind`, from its geometry keys.
+fn parse_conductors(
+    t: &Table<'_, '_>,
+    kind: &str,
+    place: &Placement<'_>,
+    warnings: &mut Vec<String>,
+) -> Result<Conductors, InputError> {
+    let (frame, ctx, wire_radius) = (place.frame, place.ctx, place.wire_radius);
+    Ok(match kind {
+        "loop" => single_wire(parse_loop(t, place)?),
+        "rectangle" => single_wire(parse_rectangle(t, place)?),
         "polygon" => {
             let v = t.require("vertices", "an array of [x, y, z] corners")?;
             let corners = parse_polygon(&v, wire_radius)?;
-            Conductors {
-                wires: vec![polygon_source(&frame, &corners, wire_radius)],
-                dipoles: vec![],
-            }
+            single_wire(polygon_source(frame, &corners, wire_radius))
         }
         "polyline" => {
             let v = t.require("vertices", "an array of [x, y, z] points")?;
             let points = parse_points(&v, 2)?;
             warnings.push(format!(
-                "source \"{id}\" is an open polyline: its return path is not modelled, so its \
-                 field is that of the drawn wire alone"
+                "source \"{}\" is an open polyline: its return path is not modelled, so its \
+                 field is that of the drawn wire alone",
+                place.id
             ));
-            Conductors {
-                wires: vec![polyline_source(&frame, &points, wire_radius)],
-                dipoles: vec![],
-            }
+            single_wire(polyline_source(frame, &points, wire_radius))
         }
         "dipole" => {
             let a = t.require("effective_area", "N·A in m2, e.g. \"150 mm2\"")?;
@@ -126,10 +141,57 @@ pub(crate) fn parse(
             if area == 0.0 {
                 return Err(a.error("a dipole with zero effective area has no field"));
             }
-            dipole_source(&frame, area, wire_radius)
+            dipole_source(frame, area, wire_radius)
         }
-        other => parse_winding(other, t, &frame, ctx, wire_radius, warnings)?,
-    };
+        other => parse_winding(other, t, frame, ctx, wire_radius, warnings)?,
+    })
+}
+
+/// Conductors made of one wire and no dipole.
+fn single_wire(wire: Polyline) -> Conductors {
+    Conductors {
+        wires: vec![wire],
+        dipoles: vec![],
+    }
+}
+
+/// The wire of a `loop` source (`radius`).
+fn parse_loop(t: &Table<'_, '_>, place: &Placement<'_>) -> Result<Polyline, InputError> {
+    let r = t.require("radius", "the loop radius, e.g. \"8 mm\"")?;
+    let radius = r.positive(Dimension::Length)?;
+    check_wire(&r, radius, place.wire_radius)?;
+    Ok(circle_source(
+        place.frame,
+        radius,
+        place.ctx.tolerance,
+        place.wire_radius,
+    ))
+}
+
+/// The wire of a `rectangle` source (`width`, `height`).
+fn parse_rectangle(t: &Table<'_, '_>, place: &Placement<'_>) -> Result<Polyline, InputError> {
+    let wire_radius = place.wire_radius;
+    let w = t.require("width", "the side along local x")?;
+    let h = t.require("height", "the side along local y")?;
+    let (wv, hv) = (
+        w.positive(Dimension::Length)?,
+        h.positive(Dimension::Length)?,
+    );
+    check_wire(&w, wv, wire_radius)?;
+    check_wire(&h, hv, wire_radius)?;
+    Ok(polygon_source(
+        place.frame,
+        &rectangle_corners(wv, hv),
+        wire_radius,
+    ))
+}
+
+/// `turns` on a single-loop kind weights each of its wires.
+fn apply_turns(
+    t: &Table<'_, '_>,
+    kind: &str,
+    conductors: &mut Conductors,
+) -> Result<(), InputError> {
     if matches!(kind, "loop" | "rectangle" | "polygon")
         && let Some(n) = t.get("turns")
     {
@@ -138,29 +200,35 @@ pub(crate) fn parse(
             w.weight = turns;
         }
     }
-    let calibrate = t.get("calibrate");
-    let mut lines = match t.get("current") {
+    Ok(())
+}
+
+/// The spectral lines of the required `current`.
+fn parse_lines(
+    t: &Table<'_, '_>,
+    id: &str,
+    ctx: &Context,
+    amplitude_required: bool,
+    warnings: &mut Vec<String>,
+) -> Result<Vec<crate::spectrum::Line>, InputError> {
+    match t.get("current") {
         Some(c) => {
             let cctx = CurrentContext {
-                source_id: &id,
+                source_id: id,
                 tolerance: ctx.tolerance,
-                amplitude_required: calibrate.is_none(),
+                amplitude_required,
             };
-            parse_current(&c, &cctx, warnings)?
+            parse_current(&c, &cctx, warnings)
         }
-        None => {
-            return Err(t.error(
-                "missing key `current`, e.g. current = { waveform = \"sine\", peak = \"1 A\", \
-                 frequency = \"50 Hz\" }",
-            ));
-        }
-    };
-    let calibration = match calibrate {
-        Some(c) => Some(calibrate_lines(&c, &conductors, &mut lines)?),
-        None => None,
-    };
-    t.finish(GEOMETRY_KEYS, &format!("a source of kind \"{kind}\""))?;
-    // Extreme amplitudes or calibrations can overflow the line phasors.
+        None => Err(t.error(
+            "missing key `current`, e.g. current = { waveform = \"sine\", peak = \"1 A\", \
+             frequency = \"50 Hz\" }",
+        )),
+    }
+}
+
+/// Extreme amplitudes or calibrations can overflow the line phasors.
+fn check_finite(t: &Table<'_, '_>, lines: &[crate::spectrum::Line]) -> Result<(), InputError> {
     let finite = |c: &num_complex::Complex64| c.re.is_finite() && c.im.is_finite();
     if !lines
         .iter()
@@ -177,15 +245,7 @@ pub(crate) fn parse(
              (or the calibration field and point)",
         ));
     }
-    Ok(Source {
-        id,
-        kind: SourceKind::from_name(kind)
-            .ok_or_else(|| t.error_at("kind", format!("unknown source kind \"{kind}\"")))?,
-        frame,
-        conductors,
-        lines,
-        calibration,
-    })
+    Ok(())
 }
 
 /// `calibrate = { at, field }`: scales `lines` so the rms of |B| at `at` equals `field`

@@ -18,6 +18,7 @@ const GEOMETRY_KEYS: &[&str] = &["radius", "width", "height", "vertices", "lengt
 /// equal GMDs give the round wire of the same external inductance, a = w·e^{−5/4}.
 const STRIP_TO_ROUND: f64 = 0.286_504_796_860_190_1;
 
+/// Builds a [`Victim`] from one `[[victim]]` table.
 pub(crate) fn parse(t: &Table<'_, '_>, ctx: &Context) -> Result<Victim, InputError> {
     t.declare(GEOMETRY_KEYS);
     t.declare(&[
@@ -46,65 +47,16 @@ pub(crate) fn parse(t: &Table<'_, '_>, ctx: &Context) -> Result<Victim, InputErr
         Some(v) => Some(v.positive(Dimension::Voltage)?),
         None => None,
     };
-    let load = match t.get("load") {
-        Some(v) => {
-            let lt = v.table()?;
-            let r = lt
-                .require("resistance", "the load resistance, e.g. \"10 kohm\"")?
-                .positive(Dimension::Resistance)?;
-            lt.finish(&[], "`load` (resistance)")?;
-            Some(r)
-        }
-        None => None,
-    };
+    let load = parse_load(t)?;
     let (edges, one_turn_l) = match kind {
-        "loop" => {
-            let r = t.require("radius", "the loop radius, e.g. \"5 mm\"")?;
-            let radius = r.positive(Dimension::Length)?;
-            check_wire(&r, radius, wire_radius)?;
-            (
-                vec![circle(&frame, radius)],
-                inductance::circle(radius, wire_radius),
-            )
-        }
-        "rectangle" => {
-            let w = t.require("width", "the side along local x")?;
-            let h = t.require("height", "the side along local y")?;
-            let (wv, hv) = (
-                w.positive(Dimension::Length)?,
-                h.positive(Dimension::Length)?,
-            );
-            check_wire(&w, wv, wire_radius)?;
-            check_wire(&h, hv, wire_radius)?;
-            straight(&frame, &rectangle_corners(wv, hv), wire_radius, ctx)
-        }
+        "loop" => parse_loop(t, &frame, wire_radius)?,
+        "rectangle" => parse_rectangle(t, &frame, wire_radius, ctx)?,
         "polygon" => {
             let v = t.require("vertices", "an array of [x, y, z] corners")?;
             let corners = parse_polygon(&v, wire_radius)?;
             straight(&frame, &corners, wire_radius, ctx)
         }
-        "trace" => {
-            let l = t.require("length", "the trace length along local x")?;
-            let h = t.require("height", "the trace's height above its return plane")?;
-            let w = t.require("width", "the trace width")?;
-            let (lv, hv) = (
-                l.positive(Dimension::Length)?,
-                h.positive(Dimension::Length)?,
-            );
-            let wv = w.positive(Dimension::Length)?;
-            if explicit_radius.is_none() {
-                wire_radius = wv * STRIP_TO_ROUND;
-            }
-            check_wire(&h, hv, wire_radius)?;
-            check_wire(&l, lv, wire_radius)?;
-            let corners = [
-                Vec3::new(-lv / 2.0, 0.0, 0.0),
-                Vec3::new(lv / 2.0, 0.0, 0.0),
-                Vec3::new(lv / 2.0, hv, 0.0),
-                Vec3::new(-lv / 2.0, hv, 0.0),
-            ];
-            straight(&frame, &corners, wire_radius, ctx)
-        }
+        "trace" => parse_trace(t, &frame, explicit_radius, &mut wire_radius, ctx)?,
         _ => unreachable!("kind checked by parse_kind"),
     };
     t.finish(GEOMETRY_KEYS, &format!("a victim of kind \"{kind}\""))?;
@@ -122,6 +74,89 @@ pub(crate) fn parse(t: &Table<'_, '_>, ctx: &Context) -> Result<Victim, InputErr
         self_inductance: one_turn_l * turns * turns,
         load,
     })
+}
+
+/// The optional `load = { resistance }` (ohm).
+fn parse_load(t: &Table<'_, '_>) -> Result<Option<f64>, InputError> {
+    let Some(v) = t.get("load") else {
+        return Ok(None);
+    };
+    let lt = v.table()?;
+    let r = lt
+        .require("resistance", "the load resistance, e.g. \"10 kohm\"")?
+        .positive(Dimension::Resistance)?;
+    lt.finish(&[], "`load` (resistance)")?;
+    Ok(Some(r))
+}
+
+/// The edge and one-turn self-inductance of a `loop` victim (`radius`).
+fn parse_loop(
+    t: &Table<'_, '_>,
+    frame: &Frame,
+    wire_radius: f64,
+) -> Result<(Vec<Edge>, f64), InputError> {
+    let r = t.require("radius", "the loop radius, e.g. \"5 mm\"")?;
+    let radius = r.positive(Dimension::Length)?;
+    check_wire(&r, radius, wire_radius)?;
+    Ok((
+        vec![circle(frame, radius)],
+        inductance::circle(radius, wire_radius),
+    ))
+}
+
+/// The edges and one-turn self-inductance of a `rectangle` victim (`width`, `height`).
+fn parse_rectangle(
+    t: &Table<'_, '_>,
+    frame: &Frame,
+    wire_radius: f64,
+    ctx: &Context,
+) -> Result<(Vec<Edge>, f64), InputError> {
+    let w = t.require("width", "the side along local x")?;
+    let h = t.require("height", "the side along local y")?;
+    let (wv, hv) = (
+        w.positive(Dimension::Length)?,
+        h.positive(Dimension::Length)?,
+    );
+    check_wire(&w, wv, wire_radius)?;
+    check_wire(&h, hv, wire_radius)?;
+    Ok(straight(
+        frame,
+        &rectangle_corners(wv, hv),
+        wire_radius,
+        ctx,
+    ))
+}
+
+/// The edges and one-turn self-inductance of a `trace` victim (`length`, `height`,
+/// `width`) over its return plane; without an explicit `wire_radius`, the strip's
+/// equivalent round wire sets `wire_radius`.
+fn parse_trace(
+    t: &Table<'_, '_>,
+    frame: &Frame,
+    explicit_radius: Option<f64>,
+    wire_radius: &mut f64,
+    ctx: &Context,
+) -> Result<(Vec<Edge>, f64), InputError> {
+    let l = t.require("length", "the trace length along local x")?;
+    let h = t.require("height", "the trace's height above its return plane")?;
+    let w = t.require("width", "the trace width")?;
+    let (lv, hv) = (
+        l.positive(Dimension::Length)?,
+        h.positive(Dimension::Length)?,
+    );
+    let wv = w.positive(Dimension::Length)?;
+    if explicit_radius.is_none() {
+        *wire_radius = wv * STRIP_TO_ROUND;
+    }
+    check_wire(&h, hv, *wire_radius)?;
+    check_wire(&l, lv, *wire_radius)?;
+    let corners = [
+        Vec3::new(-lv / 2.0, 0.0, 0.0),
+        Vec3::new(lv / 2.0, 0.0, 0.0),
+        Vec3::new(lv / 2.0, hv, 0.0),
+        Vec3::new(-lv / 2.0, hv, 0.0),
+    ];
+    Ok(straight(frame, &corners, *wire_radius, ctx))
 }
 
 /// The exact circle of `radius` (m) about the frame's z, counter-clockwise.

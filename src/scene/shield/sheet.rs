@@ -1,63 +1,15 @@
-//! `[[shield]]` and `[[enclosure]]` tables → sheets, the combined stack, enclosures;
-//! checks that no sheet cuts a source or a victim and that no enclosure wall does.
+//! `[[shield]]` tables → sheets and the combined stack; checks that no sheet cuts a
+//! source, a victim, a sweep's path or a map's grid.
 
-use super::common::{parse_frame, parse_id};
-use super::reader::{Table, Value, did_you_mean};
+use super::parse_material;
 use crate::error::InputError;
 use crate::field::Vec3;
-use crate::model::material::{self, Material};
-use crate::model::{Barrier, Enclosure, Place, Sheet};
+use crate::model::material::Material;
+use crate::model::{Barrier, Place, Sheet};
 use crate::model::{Source, Victim, source_points, victim_points};
+use crate::scene::common::parse_id;
+use crate::scene::reader::{Table, Value};
 use crate::units::Dimension;
-
-/// Reads a `material`: a built-in name or `{ conductivity, relative_permeability }`.
-pub(crate) fn parse_material(v: &Value<'_, '_>) -> Result<Material, InputError> {
-    if v.is_table() {
-        let t = v.table()?;
-        let c = t.require("conductivity", "e.g. \"3.5e7 S/m\"")?;
-        let sigma = c.quantity(Dimension::Conductivity)?;
-        if sigma < 0.0 {
-            return Err(c.error(format!("must not be negative, got {}", c.raw())));
-        }
-        let mu_r = match t.get("relative_permeability") {
-            Some(m) => {
-                let x = m.number()?;
-                if x < 1.0 {
-                    return Err(m.error(format!(
-                        "must be at least 1 (strayflux models conductors and \
-                         paramagnetic or ferromagnetic materials), got {x}"
-                    )));
-                }
-                x
-            }
-            None => 1.0,
-        };
-        t.finish(
-            &[],
-            "a custom material (conductivity, relative_permeability)",
-        )?;
-        return Ok(Material::custom(sigma, mu_r));
-    }
-    let name = v.string().map_err(|_| {
-        v.error(format!(
-            "give a material name ({}) or {{ conductivity = \"3.5e7 S/m\", \
-             relative_permeability = 1 }}",
-            material::names().join(", ")
-        ))
-    })?;
-    if let Some(m) = material::built_in(name) {
-        return Ok(m);
-    }
-    let names = material::names();
-    let hint = did_you_mean(name, &names)
-        .map(|s| format!("; did you mean \"{s}\"?"))
-        .unwrap_or_default();
-    Err(v.error(format!(
-        "unknown material \"{name}\"; built in: {}{hint} (or give \
-         {{ conductivity, relative_permeability }})",
-        names.join(", ")
-    )))
-}
 
 /// Reads one `[[shield]]`.
 pub(crate) fn parse_sheet(t: &Table<'_, '_>) -> Result<Sheet, InputError> {
@@ -71,49 +23,7 @@ pub(crate) fn parse_sheet(t: &Table<'_, '_>) -> Result<Sheet, InputError> {
     let normal = t
         .require("axis", "the sheet normal, e.g. [1, 0, 0]")?
         .direction()?;
-    let layers = match (t.get("layers"), t.get("material")) {
-        (Some(l), None) => {
-            if t.has("thickness") {
-                return Err(t.error_at(
-                    "thickness",
-                    "with `layers`, give each layer its own thickness and leave this out",
-                ));
-            }
-            let items = l.array()?;
-            if items.is_empty() {
-                return Err(l.error("needs at least one { material, thickness }"));
-            }
-            let mut out = Vec::new();
-            for item in items {
-                let lt = item.table()?;
-                let m = parse_material(&lt.require("material", "a material name")?)?;
-                let th = lt
-                    .require("thickness", "the layer's thickness, e.g. \"35 um\"")?
-                    .positive(Dimension::Length)?;
-                lt.finish(&[], "a layer (material, thickness)")?;
-                out.push((m, th));
-            }
-            out
-        }
-        (None, Some(m)) => {
-            let m = parse_material(&m)?;
-            let th = t
-                .require("thickness", "the sheet thickness, e.g. \"1 mm\"")?
-                .positive(Dimension::Length)?;
-            vec![(m, th)]
-        }
-        (Some(_), Some(_)) => {
-            return Err(t.error_at(
-                "material",
-                "give either `material` and `thickness` or `layers`, not both",
-            ));
-        }
-        (None, None) => {
-            return Err(
-                t.error("missing key `material` (a material name and a `thickness`, or `layers`)")
-            );
-        }
-    };
+    let layers = parse_layers(t)?;
     let fitted = match t.get("fitted") {
         Some(v) => v.boolean()?,
         None => true,
@@ -137,6 +47,54 @@ pub(crate) fn parse_sheet(t: &Table<'_, '_>) -> Result<Sheet, InputError> {
         layers,
         fitted,
     })
+}
+
+/// A sheet's layers from either `material` and `thickness` or `layers`.
+fn parse_layers(t: &Table<'_, '_>) -> Result<Vec<(Material, f64)>, InputError> {
+    match (t.get("layers"), t.get("material")) {
+        (Some(l), None) => {
+            if t.has("thickness") {
+                return Err(t.error_at(
+                    "thickness",
+                    "with `layers`, give each layer its own thickness and leave this out",
+                ));
+            }
+            parse_layer_list(&l)
+        }
+        (None, Some(m)) => {
+            let m = parse_material(&m)?;
+            let th = t
+                .require("thickness", "the sheet thickness, e.g. \"1 mm\"")?
+                .positive(Dimension::Length)?;
+            Ok(vec![(m, th)])
+        }
+        (Some(_), Some(_)) => Err(t.error_at(
+            "material",
+            "give either `material` and `thickness` or `layers`, not both",
+        )),
+        (None, None) => {
+            Err(t.error("missing key `material` (a material name and a `thickness`, or `layers`)"))
+        }
+    }
+}
+
+/// `layers = [{ material, thickness }, ...]`, at least one.
+fn parse_layer_list(l: &Value<'_, '_>) -> Result<Vec<(Material, f64)>, InputError> {
+    let items = l.array()?;
+    if items.is_empty() {
+        return Err(l.error("needs at least one { material, thickness }"));
+    }
+    let mut out = Vec::new();
+    for item in items {
+        let lt = item.table()?;
+        let m = parse_material(&lt.require("material", "a material name")?)?;
+        let th = lt
+            .require("thickness", "the layer's thickness, e.g. \"35 um\"")?
+            .positive(Dimension::Length)?;
+        lt.finish(&[], "a layer (material, thickness)")?;
+        out.push((m, th));
+    }
+    Ok(out)
 }
 
 /// Reads the `[[shield]]` tables and checks them against the sources and victims.
@@ -194,103 +152,6 @@ fn check_sides(
             })?;
     }
     Ok(())
-}
-
-/// Reads one `[[enclosure]]`.
-pub(crate) fn parse_enclosure(
-    t: &Table<'_, '_>,
-    sources: &[Source],
-    victims: &[Victim],
-) -> Result<Enclosure, InputError> {
-    let id = parse_id(t)?;
-    let frame = parse_frame(t)?;
-    let size_v = t.require(
-        "size",
-        "outside edge lengths [x, y, z], e.g. [\"40 mm\", \"30 mm\", \"10 mm\"]",
-    )?;
-    let size = size_v.vector(Dimension::Length)?;
-    if size.iter().any(|&s| s <= 0.0) {
-        return Err(size_v.error("every edge length must be greater than zero"));
-    }
-    let material = parse_material(&t.require("material", "a material name")?)?;
-    let th_v = t.require("thickness", "the wall thickness, e.g. \"0.5 mm\"")?;
-    let thickness = th_v.positive(Dimension::Length)?;
-    if 2.0 * thickness >= size.min() {
-        return Err(th_v
-            .error("the walls would fill the box: make them thinner than half its smallest edge"));
-    }
-    let c = t.require(
-        "contains",
-        "the ids of the victims inside, e.g. [\"adc-in\"]",
-    )?;
-    let mut contains = Vec::new();
-    for item in c.array()? {
-        let name = item.string()?;
-        let Some(v) = victims.iter().find(|v| v.id == name) else {
-            let ids: Vec<&str> = victims.iter().map(|v| v.id.as_str()).collect();
-            let hint = did_you_mean(name, &ids)
-                .map(|s| format!("; did you mean \"{s}\"?"))
-                .unwrap_or_default();
-            return Err(item.error(format!("no victim has id \"{name}\"{hint}")));
-        };
-        contains.push(v.id.clone());
-    }
-    if contains.is_empty() {
-        return Err(c.error("list at least one victim id"));
-    }
-    t.finish(
-        &[
-            "id",
-            "position",
-            "axis",
-            "reference",
-            "size",
-            "material",
-            "thickness",
-            "contains",
-        ],
-        "[[enclosure]]",
-    )?;
-    let e = Enclosure {
-        id,
-        frame,
-        size,
-        material,
-        thickness,
-        contains,
-    };
-    let inner = Enclosure {
-        size: e.size - Vec3::repeat(2.0 * thickness),
-        ..e.clone()
-    };
-    for name in &e.contains {
-        let outside = victims
-            .iter()
-            .filter(|v| &v.id == name)
-            .any(|v| victim_points(&v.edges).iter().any(|p| !inner.holds(p)));
-        if outside {
-            return Err(c.error(format!(
-                "victim \"{name}\" is not inside enclosure \"{}\": enlarge or move the box",
-                e.id
-            )));
-        }
-    }
-    for s in sources {
-        let pts = source_points(s);
-        let inside = pts.iter().filter(|p| e.holds(p)).count();
-        let in_wall = pts.iter().any(|p| e.holds(p) && !inner.holds(p));
-        if in_wall || (inside > 0 && inside < pts.len()) {
-            return Err(t.error_at(
-                "size",
-                format!(
-                    "a wall of enclosure \"{}\" cuts source \"{}\": a source is either wholly \
-                     inside or wholly outside",
-                    e.id, s.id
-                ),
-            ));
-        }
-    }
-    Ok(e)
 }
 
 /// Checks that every step of `spec` keeps its victim outside the sheets and on one side.

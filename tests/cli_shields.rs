@@ -1,6 +1,6 @@
 //! The command line with shields: every class of bad shield input gets exit 2 and one
 //! located line (README, "Commands", the bad-input table), and the outputs carry the
-//! shielding (SPEC.md: `shielding_db` per line, shields as quads in `scene.vtp`).
+//! shielding (docs/model.md: `shielding_db` per line; shields as quads in `scene.vtp`).
 
 mod cli_support;
 
@@ -211,7 +211,7 @@ fn compare_with_an_unknown_shield_names_the_near_miss() {
 #[test]
 fn couple_reports_shielding_per_line_and_the_free_space_m() {
     // 1 mm copper at 100 kHz (δ = 0.21 mm): the plate must cut the EMF by tens of dB;
-    // M stays the free-space value, and |EMF| = ωM|I| / 10^(dB/20) (SPEC.md).
+    // M stays the free-space value, and |EMF| = ωM|I| / 10^(dB/20) (docs/model.md).
     let shielded = scene(
         "cu.toml",
         &format!(
@@ -242,7 +242,7 @@ fn couple_reports_shielding_per_line_and_the_free_space_m() {
 
 #[test]
 fn materials_prints_the_skin_depth_of_copper() {
-    // δ = 1/√(π f μ0 σ) for copper (58 MS/m) at 60 Hz is 8.53 mm (PHYSICS.md §6: ≈ 8.5 mm).
+    // δ = 1/√(π f μ0 σ) for copper (58 MS/m) at 60 Hz is 8.53 mm (skin depth δ = √(2/(ωμσ)), Jackson, "Classical Electrodynamics", 3rd ed., §5.18; from memory).
     let out = run(&["materials", "--frequency", "60 Hz"]);
     assert_eq!(out.status.code(), Some(0));
     let text = String::from_utf8_lossy(&out.stdout);
@@ -317,7 +317,7 @@ fn a_compared_sweep_writes_one_column_per_alternative() {
         // passive conducting sheet only removes flux here; common practice).
         let none = cmp[0]["total_emf_v_rms"][k].as_f64().unwrap();
         // One line: its shielding is the ratio of the totals without and with the sheet
-        // (SPEC.md's definition of shielding_db).
+        // (the definition of shielding_db in docs/model.md).
         let fitted = cmp[1]["total_emf_v_rms"][k].as_f64().unwrap();
         let db = r["shielding_db"][0].as_f64().unwrap();
         assert!((db - 20.0 * (none / fitted).log10()).abs() < 1e-9, "{db}");

@@ -455,7 +455,7 @@ fn file_source_rows_and_paths_are_located_in_their_own_files() {
 
 #[test]
 fn file_source_path_is_relative_to_the_scene_and_a_closed_square_is_a_rectangle() {
-    // Paths are relative to the scene file's folder (SPEC.md), not the working
+    // Paths are relative to the scene file's folder (docs/scene-reference.md), not the working
     // directory: run from elsewhere. The closed square's length is its perimeter and its
     // moment a² per ampere (½∮ r × dl of a square); the same rectangle source couples
     // the same M into a victim (both are the same four segments).
@@ -532,11 +532,11 @@ fn parse_printed(number: &str, unit_with_prefix: &str, unit: &str) -> f64 {
 
 #[test]
 fn calibrate_scales_each_source_alone_to_the_given_rms_field() {
-    // SPEC.md: `calibrate = { at, field }` sets the current so that the rms of |B| at
+    // docs/scene-reference.md: `calibrate = { at, field }` sets the current so that the rms of |B| at
     // `at` equals `field`, i.e. √(Σ_k |B_k|²/2) over the source's lines (the rms of a sum
     // of distinct-frequency sinusoids is the root-sum-square of their rms values:
     // Parseval). The waveform's shape is kept: the triangle's lines stay in the ratios
-    // 1/n² with their signs (8Î/(n²π²), PHYSICS.md §4). It considers the source alone, so
+    // 1/n² with their signs (8Î/(n²π²), the triangle wave's Fourier series; docs/model.md). It considers the source alone, so
     // the second source's field at the point does not count.
     let dir = scratch().join("calibrate");
     std::fs::create_dir_all(&dir).unwrap();

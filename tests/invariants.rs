@@ -23,7 +23,7 @@ use strayflux::run::Solver;
 use strayflux::run::couple::{VictimReport, couple_victim};
 use strayflux::run::probe::probe;
 
-/// The scene's default relative tolerance (SPEC.md `[solver]`; `DEFAULT_TOLERANCE`).
+/// The scene's default relative tolerance (`[solver]` in docs/scene-reference.md; `DEFAULT_TOLERANCE`).
 const TOL: f64 = 1e-6;
 /// The scene's default wire radius, m.
 const WIRE: f64 = 1e-4;

@@ -1,5 +1,5 @@
 //! Flux, mutual inductance and induced EMF against published closed forms and an
-//! independent Neumann double integral (PHYSICS.md §3). Expected values are computed
+//! independent Neumann double integral (docs/model.md). Expected values are computed
 //! here from named formulas in `common`, never taken from the library's own output.
 //!
 //! Run with `cargo test --test physics_coupling -- --nocapture` to see the errors.
@@ -20,7 +20,7 @@ use strayflux::run::Solver;
 use strayflux::run::couple::couple_victim;
 use strayflux::run::probe::probe;
 
-/// Default scene tolerance and wire radius (SPEC.md `[solver]` defaults).
+/// Default scene tolerance and wire radius (`[solver]` defaults, docs/scene-reference.md).
 const TOL: f64 = 1e-6;
 const WIRE: f64 = 1e-4;
 
@@ -570,7 +570,7 @@ fn arr(v: &Vec3) -> String {
 fn mutual_inductance_and_field_are_invariant_under_rigid_motion_of_the_scene() {
     // Physics does not depend on where the bench stands: rotating and translating the
     // whole scene (positions, axes and references) leaves every M unchanged and turns
-    // B(Qr + t) into Q B(r) (PHYSICS.md §3 property; Euclidean invariance of the
+    // B(Qr + t) into Q B(r) (Euclidean invariance of the
     // Biot–Savart law).
     let k = Vec3::new(0.3, -0.8, 0.5).normalize();
     let angle = 1.1;

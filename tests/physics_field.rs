@@ -1,5 +1,5 @@
 //! Fields of the modelled conductors against published closed forms and the identities
-//! of magnetostatics (PHYSICS.md §2–3). Every expected value is computed here from a
+//! of magnetostatics (docs/model.md). Every expected value is computed here from a
 //! named formula in `common`, never taken from the library's own output.
 //!
 //! Run with `cargo test --test physics_field -- --nocapture` to see the measured errors.
@@ -11,7 +11,7 @@ use std::f64::consts::{PI, TAU};
 use strayflux::field::{Conductors, Dipole, FieldSource, Polyline, Vec3, b_at_points};
 use strayflux::geometry::{Frame, circle_source, polygon_source, rectangle_corners};
 
-/// Default scene tolerance and wire radius (SPEC.md `[solver]` defaults).
+/// Default scene tolerance and wire radius (`[solver]` defaults, docs/scene-reference.md).
 const TOL: f64 = 1e-6;
 const WIRE: f64 = 1e-4;
 /// Loop radius used throughout, m.
@@ -79,7 +79,7 @@ fn loop_reference_formula_agrees_with_direct_biot_savart_quadrature() {
 fn loop_field_off_axis_matches_elliptic_closed_form() {
     // Simpson, Lane, Immer & Youngquist, "Simple analytic expressions for the magnetic
     // field of a circular current loop", NASA TM (2001): Bρ, Bz in K(k²), E(k²).
-    // Target (PHYSICS.md §3, scene tolerance 1e-6): |B − B_exact| / |B_exact| ≤ 1e-6 at
+    // Target (docs/model.md, scene tolerance 1e-6): |B − B_exact| / |B_exact| ≤ 1e-6 at
     // every point at least 0.1 R from the wire.
     let lp = PlacedLoop::new(R);
     let mut rng = Lcg(0x5eed_0001);
@@ -337,7 +337,7 @@ fn square_and_rectangle_loop_centre_fields_match_closed_forms() {
 fn helmholtz_pair_centre_field_matches_closed_form() {
     // Helmholtz pair (two N-turn loops of radius R, R apart): B = (4/5)^{3/2} μ0 N I / R
     // at the centre, from the on-axis loop law at z = R/2 for each coil: 2 · μ0 N I R² /
-    // (2 (R² + R²/4)^{3/2}) (PHYSICS.md §3).
+    // (2 (R² + R²/4)^{3/2}) (Jackson, "Classical Electrodynamics", 3rd ed., problem 5.7).
     let n_turns = 25.0;
     let axis = Vec3::new(0.0, 1.0, 1.0).normalize();
     let centre = Vec3::new(0.0, 0.01, 0.0);
@@ -617,7 +617,7 @@ fn divergence_of_b_vanishes_away_from_the_conductors() {
 
 #[test]
 fn field_and_potential_stay_finite_on_and_inside_the_conductors() {
-    // PHYSICS.md §2: no NaN or infinity for any finite input; inside the wire radius the
+    // docs/model.md: no NaN or infinity for any finite input; inside the wire radius the
     // field of a round conductor with uniform current, μ0 I ρ / (2π a²) (Ampère's law),
     // which is bounded by its surface value μ0 I / (2π a). Points on vertices, on
     // segments, on extension lines, and at a dipole's centre.

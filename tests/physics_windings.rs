@@ -1,6 +1,6 @@
 //! Fields, lengths and moments of the winding kinds (helix, toroid, spirals, saddle,
 //! cable pairs, `file`) against published closed forms, formulas derived here from the
-//! Biot–Savart law, and independent quadratures of the exact curves (PHYSICS.md §3).
+//! Biot–Savart law, and independent quadratures of the exact curves (docs/model.md).
 //! Every expected value is computed in this file or in `common`, never taken from the
 //! library's own output; the library's `Vec3`, `Frame` and conductors are only the
 //! things under test.
@@ -15,7 +15,7 @@ use strayflux::Scene;
 use strayflux::field::{Conductors, FieldSource, Polyline, Vec3};
 use strayflux::geometry::{Frame, helix, pair, round_spiral, saddle, toroid};
 
-/// Default scene tolerance and wire radius (SPEC.md `[solver]` defaults).
+/// Default scene tolerance and wire radius (`[solver]` defaults, docs/scene-reference.md).
 const TOL: f64 = 1e-6;
 const WIRE: f64 = 1e-4;
 
@@ -119,7 +119,7 @@ fn tilted() -> Frame {
 /// On-axis B_z (T per ampere) of a finite solenoid of `n_per_m` turns per metre, radius
 /// `r`, spanning −len/2..len/2: B = (μ0 n I/2)(cos θ1 − cos θ2) written as
 /// (μ0 n I/2)[(z + ℓ/2)/√(R² + (z + ℓ/2)²) − (z − ℓ/2)/√(R² + (z − ℓ/2)²)]
-/// (Griffiths, "Introduction to Electrodynamics", Problem 5.11; from memory; PHYSICS.md §3).
+/// (Griffiths, "Introduction to Electrodynamics", Problem 5.11; from memory).
 fn solenoid_bz(n_per_m: f64, r: f64, len: f64, z: f64) -> f64 {
     let (u, v) = (z + len / 2.0, z - len / 2.0);
     MU0 * n_per_m / 2.0 * (u / (r * r + u * u).sqrt() - v / (r * r + v * v).sqrt())
@@ -280,12 +280,12 @@ fn toroid_shell_reference_is_converged() {
 #[test]
 fn toroid_field_is_ampere_toroidal_field_plus_the_one_turn_shell() {
     // Inside the tube (away from the winding) the poloidal winding's axisymmetric part
-    // gives B_φ = μ0 N I/(2πρ) by Ampère's law (ideal toroid, PHYSICS.md §3; Griffiths
+    // gives B_φ = μ0 N I/(2πρ) by Ampère's law (ideal toroid; Griffiths
     // Example 5.10, from memory); its sign here is −φ̂: the wire advances in the minor
     // angle θ, so the N inner legs (θ = π) carry current along −z through the disc of
     // radius ρ (derived here from the documented parametrisation). Outside the tube that
     // part gives nothing. On top comes the one turn around the major circumference, which
-    // the path makes (SPEC.md), i.e. the shell of `one_turn_shell_b`. The rest is the
+    // the path makes (docs/scene-reference.md), i.e. the shell of `one_turn_shell_b`. The rest is the
     // discreteness of the N turns, which falls off as e^{−2π d/s} with d the distance to
     // the winding and s the turn spacing (the same estimate as `circle_segments`'
     // doc): 200 turns put s at 1.1 mm on the outer equator, so e^{−2π d/s} < 1e-12 at the
@@ -357,7 +357,7 @@ fn toroid_moment(major: f64, minor: f64) -> f64 {
 fn toroid_dipole_moment_is_the_one_turn_moment() {
     // The reported moment (½Σ r_k × r_{k+1} over the path) against π(R² + r²/2)
     // (`toroid_moment`), at a coarse and at the default tolerance; target: that tolerance
-    // (the far field is this moment's field, PHYSICS.md §3: "fields ... meet tolerance").
+    // (the far field is this moment's field; docs/model.md: fields meet the tolerance).
     let (major, minor, turns) = (0.025, 0.010, 24u64);
     let frame = tilted();
     let m = frame.z * toroid_moment(major, minor);
@@ -381,7 +381,7 @@ fn toroid_dipole_moment_is_the_one_turn_moment() {
 
 #[test]
 fn toroid_far_field_is_the_one_turn_dipole() {
-    // Far away only the one turn around the major circumference remains (PHYSICS.md §3):
+    // Far away only the one turn around the major circumference remains (docs/model.md):
     // the point dipole (Jackson, "Classical Electrodynamics", 3rd ed., eq. 5.56) of
     // moment π(R² + r²/2) ẑ (`toroid_moment`, derived here). The next multipole's
     // relative size is bounded by 3((R + r)/d)² (the loop's on-axis series
@@ -575,7 +575,7 @@ fn twisted_pair_field_falls_exponentially_with_distance_over_pitch() {
 // Spirals
 // ---------------------------------------------------------------------------------------
 
-/// Corners of the square spiral from the rule documented in SPEC/README and
+/// Corners of the square spiral from the rule documented in docs/scene-reference.md and
 /// `geometry::square_spiral_corners`, rebuilt here in a different form: n = round(4·turns)
 /// sides, side j lies on the line u_j · p = d_j with u_j the unit vector at angle jπ/2
 /// and d_j = inner + j (outer − inner)/n; the corner after side j is the crossing of
@@ -835,7 +835,7 @@ fn file_source_closed_square_equals_the_rectangle_source() {
     // repeated last) is the same conductor as a `rectangle` of that size with the same
     // placement: equal fields (1e-12) at points around it, and a square loop's centre
     // field 2√2 μ0 I/(π a) (Griffiths Problem 5.8, from memory). The path is relative to
-    // the scene file's folder (SPEC.md, `file`).
+    // the scene file's folder (docs/scene-reference.md, `file`).
     let dir = std::path::PathBuf::from(env!("CARGO_TARGET_TMPDIR")).join("windings-file");
     std::fs::create_dir_all(dir.join("paths")).unwrap();
     std::fs::write(

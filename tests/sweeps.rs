@@ -1,5 +1,5 @@
 //! Sweeps, worst-case orientation, victim self-inductance and the load divider
-//! (SPEC.md `[[sweep]]`, `sweep --json`, victim `load`; PHYSICS.md §3 and §5), at the
+//! (docs/scene-reference.md: `[[sweep]]`, victim `load`; docs/model.md), at the
 //! library level and through the binary. Expected values are computed here from named
 //! formulas (mostly in `common`), never taken from the library's own output; where a
 //! bound is derived in this file the comment says so.
@@ -848,8 +848,8 @@ fn couple_lines(doc: &Value) -> (Vec<(f64, f64, f64)>, f64) {
 #[test]
 fn load_voltage_is_the_emf_through_the_loop_inductance_divider() {
     let dir = scratch("load");
-    // PHYSICS.md §5: V = E·R/(R + jωL) per line, |V| = |E| R / √(R² + ω²L²); lines at
-    // distinct frequencies add root-sum-square (SPEC.md, Currents).
+    // The voltage divider of the loop inductance and the load (docs/model.md): V = E·R/(R + jωL) per line, |V| = |E| R / √(R² + ω²L²); lines at
+    // distinct frequencies add root-sum-square (Parseval; docs/model.md).
     let mut corner_hz = None;
     for (name, r_ohm, r_text) in [
         ("mid", 0.1, "0.1 ohm"),
@@ -1041,10 +1041,10 @@ fn sweep_writes_csv_and_svg_that_agree_with_the_json_rows() {
             assert!(rel(nums[0], f(&jr["value"])) < 1e-12 || nums[0] == f(&jr["value"]));
             let total = f(&jr["total_emf_v_rms"]);
             assert!(rel(nums[n_lines + 1], total) < 1e-12, "{id}");
-            // The line columns add root-sum-square to the total (SPEC.md, Currents).
+            // The line columns add root-sum-square to the total (Parseval; docs/model.md).
             let rss = nums[1..=n_lines].iter().map(|e| e * e).sum::<f64>().sqrt();
             assert!(rel(rss, total) < 1e-12, "{id}: rss {rss} vs {total}");
-            // margin_db = 20 log10(limit / total) (SPEC.md), printed to 4 decimals.
+            // margin_db = 20 log10(limit / total) (docs/model.md), printed to 4 decimals.
             assert!((nums[n_lines + 2] - db(limit / total)).abs() < 1e-4, "{id}");
             if worst {
                 let ja: Vec<f64> = (0..3).map(|k| f(&jr["worst_axis"][k])).collect();

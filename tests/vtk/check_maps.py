@@ -297,7 +297,7 @@ def check_rms(mf, arrays):
     for re, im, rms in zip(arrays["B_re"], arrays["B_im"], arrays["B_rms"]):
         want = math.sqrt(sum(x * x for x in re) + sum(x * x for x in im)) / math.sqrt(2.0)
         worst = max(worst, abs(rms[0] - want) / max(want, 1e-300))
-    # rms of a sinusoid of peak phasor B: |B| / sqrt(2) (SPEC, Quantities; and the
+    # rms of a sinusoid of peak phasor B: |B| / sqrt(2) (docs/model.md; and the
     # definition of rms). A few roundings apart at most.
     if worst > 1e-14:
         fail("%s: B_rms differs from sqrt(|B_re|^2+|B_im|^2)/sqrt(2) by %.2e relative" % (

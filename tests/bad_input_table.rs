@@ -325,3 +325,392 @@ fn every_row_gives_exit_two_and_one_located_line() {
         );
     }
 }
+
+// ---------------------------------------------------------------------------------------
+// Further bad input, beyond the README's rows: each case names the exact line (and,
+// where known, column) and the dotted key that the one-line message must start with.
+// Gathered here from the CLI tests so that every bad-input case is in one table.
+
+/// A loop source on its own (the CLI tests' `GOOD_SOURCE`).
+const GOOD_SOURCE: &str = SOURCE;
+
+/// A 10 mm loop at the origin driven at 100 kHz, a victim loop 20 mm above it (the
+/// shield cases' base scene).
+const SHIELD_BASE: &str = r#"[[source]]
+id = "coil"
+kind = "loop"
+radius = "10 mm"
+current = { frequency = "100 kHz", peak = "1 A" }
+
+[[victim]]
+id = "pickup"
+kind = "loop"
+radius = "5 mm"
+position = [0, 0, "20 mm"]
+limit = "1 mV"
+"#;
+
+fn sheet(id: &str, material: &str, thickness: &str, z_mm: f64, axis: &str) -> String {
+    format!(
+        "\n[[shield]]\nid = \"{id}\"\nmaterial = {material}\nthickness = \"{thickness}\"\n\
+         position = [0, 0, \"{z_mm} mm\"]\naxis = {axis}\n"
+    )
+}
+
+/// One `check` case: the scene, the line and column (when pinned) of the location and
+/// the key and words the message must carry.
+struct Located {
+    name: &'static str,
+    scene: String,
+    line: usize,
+    col: Option<usize>,
+    key: &'static str,
+    words: &'static str,
+}
+
+fn at(
+    name: &'static str,
+    scene: impl Into<String>,
+    (line, col): (usize, Option<usize>),
+    key: &'static str,
+    words: &'static str,
+) -> Located {
+    Located {
+        name,
+        scene: scene.into(),
+        line,
+        col,
+        key,
+        words,
+    }
+}
+
+fn located_cases() -> Vec<Located> {
+    let g = GOOD_SOURCE;
+    let colinear = r#"[[source]]
+id = "p"
+kind = "polygon"
+vertices = [[0, 0, 0], ["1 mm", 0, 0], ["2 mm", 0, 0]]
+current = { peak = "1 A", frequency = "50 Hz" }
+"#;
+    let b = SHIELD_BASE;
+    let plate = |z: f64| sheet("plate", "\"copper\"", "1 mm", z, "[0, 0, 1]");
+    vec![
+        // Scene keys and values (formerly tests/cli.rs).
+        at(
+            "misspelt",
+            g.replace("radius", "radus"),
+            (4, Some(1)),
+            "source[1].radus",
+            "did you mean `radius`",
+        ),
+        at(
+            "unknown",
+            format!("{g}colour = \"red\"\n"),
+            (6, Some(1)),
+            "source[1].colour",
+            "unknown key",
+        ),
+        at(
+            "missing",
+            g.replace("radius = \"8 mm\"\n", ""),
+            (1, Some(1)),
+            "source[1].radius",
+            "missing key",
+        ),
+        at(
+            "unit",
+            g.replace("\"8 mm\"", "\"8 kHz\""),
+            (4, Some(10)),
+            "source[1].radius",
+            "frequency",
+        ),
+        at(
+            "nan",
+            g.replace("\"8 mm\"", "nan"),
+            (4, Some(10)),
+            "source[1].radius",
+            "not a finite number",
+        ),
+        at(
+            "inf",
+            g.replace("\"8 mm\"", "inf"),
+            (4, Some(10)),
+            "source[1].radius",
+            "not a finite number",
+        ),
+        at(
+            "axis",
+            format!("{g}axis = [0, 0, 0]\n"),
+            (6, Some(8)),
+            "source[1].axis",
+            "zero vector",
+        ),
+        at(
+            "neg",
+            g.replace("\"8 mm\"", "\"-8 mm\""),
+            (4, Some(10)),
+            "source[1].radius",
+            "greater than zero",
+        ),
+        at(
+            "type",
+            g.replace("\"8 mm\"", "true"),
+            (4, Some(10)),
+            "source[1].radius",
+            "found a boolean",
+        ),
+        at(
+            "dup",
+            format!("{g}[[victim]]\nid = \"s\"\nkind = \"loop\"\nradius = \"5 mm\"\n"),
+            (7, Some(1)),
+            "victim[1].id",
+            "already used",
+        ),
+        at(
+            "colinear",
+            colinear,
+            (4, Some(12)),
+            "source[1].vertices",
+            "colinear",
+        ),
+        at(
+            "zeroseg",
+            colinear.replace("[\"2 mm\", 0, 0]", "[\"1 mm\", 0, 0]"),
+            (4, Some(40)),
+            "source[1].vertices[3]",
+            "zero-length",
+        ),
+        at(
+            "nottoml",
+            "[[source]\nid = 1\n",
+            (1, Some(10)),
+            "",
+            "not valid TOML",
+        ),
+        at(
+            "kind",
+            g.replace("\"loop\"", "\"lop\""),
+            (3, Some(8)),
+            "source[1].kind",
+            "did you mean \"loop\"",
+        ),
+        at(
+            "both",
+            g.replace("peak = \"1 A\"", "peak = \"1 A\", rms = \"1 A\""),
+            (5, Some(46)),
+            "source[1].current.rms",
+            "only one of",
+        ),
+        at(
+            "wire",
+            g.replace("\"8 mm\"", "\"0.1 mm\""),
+            (4, Some(10)),
+            "source[1].radius",
+            "wire diameter",
+        ),
+        at(
+            "freq",
+            g.replace("\"50 Hz\"", "\"0 Hz\""),
+            (5, Some(58)),
+            "source[1].current.frequency",
+            "greater than zero",
+        ),
+        at(
+            "badid",
+            g.replace("id = \"s\"", "id = \"my coil\""),
+            (2, Some(6)),
+            "source[1].id",
+            "not a valid id",
+        ),
+        at(
+            "shieldpos",
+            format!("{g}[[shield]]\nid = \"plate\"\n"),
+            (6, Some(1)),
+            "shield[1].position",
+            "missing key `position`",
+        ),
+        at(
+            "nosource",
+            "[scene]\ntitle = \"empty\"\n",
+            (1, Some(1)),
+            "",
+            "no [[source]]",
+        ),
+        at(
+            "toptypo",
+            g.replace("[[source]]", "[[sources]]"),
+            (1, Some(3)),
+            "sources",
+            "did you mean `source`",
+        ),
+        at(
+            "ref",
+            format!("{g}reference = [0, 0, 2]\n"),
+            (6, Some(13)),
+            "source[1].reference",
+            "parallel",
+        ),
+        // Shields (formerly tests/cli_shields.rs).
+        at(
+            "unknown material names the near miss",
+            format!(
+                "{b}{}",
+                sheet("plate", "\"copperr\"", "1 mm", 8.0, "[0, 0, 1]")
+            ),
+            (16, None),
+            "shield[1].material",
+            "did you mean \"copper\"",
+        ),
+        at(
+            "zero thickness",
+            format!(
+                "{b}{}",
+                sheet("plate", "\"copper\"", "0 mm", 8.0, "[0, 0, 1]")
+            ),
+            (17, None),
+            "shield[1].thickness",
+            "greater than zero",
+        ),
+        // The sheet fills z = -0.5 .. 0.5 mm: the source loop lies in it.
+        at(
+            "a sheet through the source",
+            format!("{b}{}", plate(-0.5)),
+            (18, None),
+            "shield[1].position",
+            "source \"coil\"",
+        ),
+        at(
+            "a sheet through the victim",
+            format!("{b}{}", plate(19.5)),
+            (18, None),
+            "shield[1].position",
+            "victim \"pickup\"",
+        ),
+        at(
+            "sheets must be parallel",
+            format!(
+                "{b}{}{}",
+                sheet("a", "\"copper\"", "1 mm", 8.0, "[0, 0, 1]"),
+                sheet("b", "\"copper\"", "1 mm", 12.0, "[0, 0.1, 1]")
+            ),
+            (26, None),
+            "shield[2].axis",
+            "not parallel",
+        ),
+        at(
+            "sheets must not overlap",
+            format!(
+                "{b}{}{}",
+                sheet("a", "\"copper\"", "2 mm", 8.0, "[0, 0, 1]"),
+                sheet("b", "\"copper\"", "1 mm", 9.0, "[0, 0, 1]")
+            ),
+            (26, None),
+            "shield[2].axis",
+            "overlaps",
+        ),
+        at(
+            "a custom material below unit permeability",
+            format!(
+                "{b}{}",
+                sheet(
+                    "plate",
+                    "{ conductivity = \"1e7 S/m\", relative_permeability = 0.5 }",
+                    "1 mm",
+                    8.0,
+                    "[0, 0, 1]"
+                )
+            ),
+            (16, None),
+            "shield[1].material.relative_permeability",
+            "at least 1",
+        ),
+        at(
+            "a sweep through the sheet",
+            format!(
+                "{b}{}\n[[sweep]]\nid = \"s\"\nvictim = \"pickup\"\nvary = \"distance\"\n\
+                 along = [0, 0, -1]\nfrom = \"1 mm\"\nto = \"15 mm\"\nsteps = 5\n",
+                plate(8.0)
+            ),
+            (27, None),
+            "sweep[1].to",
+            "shield",
+        ),
+        at(
+            "map points inside a sheet",
+            format!(
+                "{b}{}\n[[map]]\nid = \"m\"\nkind = \"plane\"\nmin = [\"-5 mm\", 0, \"0 mm\"]\n\
+                 max = [\"5 mm\", 0, \"12 mm\"]\nstep = \"1 mm\"\n",
+                plate(8.0)
+            ),
+            (21, None),
+            "map[1]",
+            "inside shield \"plate\"",
+        ),
+        at(
+            "a victim outside its enclosure",
+            format!(
+                "{b}\n[[enclosure]]\nid = \"can\"\nsize = [\"4 mm\", \"4 mm\", \"4 mm\"]\n\
+                 position = [0, 0, \"20 mm\"]\nmaterial = \"steel\"\nthickness = \"0.3 mm\"\n\
+                 contains = [\"pickup\"]\n"
+            ),
+            (20, None),
+            "enclosure[1].contains",
+            "not inside enclosure",
+        ),
+        at(
+            "compare with an unknown shield names the near miss",
+            format!(
+                "{b}{}\n[[sweep]]\nid = \"s\"\nvictim = \"pickup\"\nvary = \"frequency\"\n\
+                 from = \"1 kHz\"\nto = \"1 MHz\"\nsteps = 4\ncompare = [\"none\", \"plait\"]\n",
+                plate(8.0)
+            ),
+            (28, None),
+            "sweep[1].compare[2]",
+            "did you mean \"plate\"",
+        ),
+    ]
+}
+
+#[test]
+fn further_bad_scenes_give_exit_two_and_one_line_at_the_key() {
+    let dir = std::env::temp_dir().join(format!("strayflux-located-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    for (i, c) in located_cases().into_iter().enumerate() {
+        let path = dir.join(format!("case{i}.toml"));
+        std::fs::write(&path, &c.scene).unwrap();
+        let out = run(&["check", path.to_str().unwrap()]);
+        let name = c.name;
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{name}: {err}");
+        assert!(out.stdout.is_empty(), "{name}: stdout not empty");
+        assert_eq!(err.trim_end().lines().count(), 1, "{name}: {err}");
+        assert!(!err.contains("panicked"), "{name}: {err}");
+        match c.col {
+            Some(col) => {
+                let prefix = format!("{}:{}:{col}: {}", path.display(), c.line, c.key);
+                assert!(
+                    err.starts_with(&prefix),
+                    "{name}: expected `{prefix}`, got `{err}`"
+                );
+            }
+            None => {
+                let prefix = format!("{}:{}:", path.display(), c.line);
+                assert!(
+                    err.starts_with(&prefix),
+                    "{name}: expected `{prefix}`, got `{err}`"
+                );
+                assert!(
+                    err.contains(&format!(": {}: ", c.key)),
+                    "{name}: key {} in `{err}`",
+                    c.key
+                );
+            }
+        }
+        assert!(
+            err.contains(c.words),
+            "{name}: expected `{}` in `{err}`",
+            c.words
+        );
+    }
+}

@@ -8,12 +8,8 @@ mod cli_support;
 use cli_support::run;
 use std::path::PathBuf;
 
-const SOURCE: &str = r#"[[source]]
-id = "s"
-kind = "loop"
-radius = "8 mm"
-current = { waveform = "sine", peak = "1 A", frequency = "50 Hz" }
-"#;
+/// An 8 mm loop source (tests/fixtures/README.md).
+const SOURCE: &str = include_str!("fixtures/loop-source.toml");
 
 const VICTIM: &str = r#"
 [[victim]]
@@ -335,20 +331,8 @@ fn every_row_gives_exit_two_and_one_located_line() {
 const GOOD_SOURCE: &str = SOURCE;
 
 /// A 10 mm loop at the origin driven at 100 kHz, a victim loop 20 mm above it (the
-/// shield cases' base scene).
-const SHIELD_BASE: &str = r#"[[source]]
-id = "coil"
-kind = "loop"
-radius = "10 mm"
-current = { frequency = "100 kHz", peak = "1 A" }
-
-[[victim]]
-id = "pickup"
-kind = "loop"
-radius = "5 mm"
-position = [0, 0, "20 mm"]
-limit = "1 mV"
-"#;
+/// shield cases' base scene; tests/fixtures/README.md).
+const SHIELD_BASE: &str = include_str!("fixtures/coil-over-pickup.toml");
 
 fn sheet(id: &str, material: &str, thickness: &str, z_mm: f64, axis: &str) -> String {
     format!(

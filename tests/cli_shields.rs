@@ -16,19 +16,7 @@ fn scene(name: &str, text: &str) -> PathBuf {
 }
 
 /// A 10 mm loop at the origin driven at 100 kHz, a victim loop 20 mm above it.
-const BASE: &str = r#"[[source]]
-id = "coil"
-kind = "loop"
-radius = "10 mm"
-current = { frequency = "100 kHz", peak = "1 A" }
-
-[[victim]]
-id = "pickup"
-kind = "loop"
-radius = "5 mm"
-position = [0, 0, "20 mm"]
-limit = "1 mV"
-"#;
+const BASE: &str = include_str!("fixtures/coil-over-pickup.toml");
 
 fn sheet(id: &str, material: &str, thickness: &str, z_mm: f64, axis: &str) -> String {
     format!(

@@ -698,3 +698,101 @@ fn further_bad_scenes_give_exit_two_and_one_line_at_the_key() {
         );
     }
 }
+
+// ---------------------------------------------------------------------------------------
+// Unreadable files and bad arguments (formerly tests/cli.rs): exit 2 and a message that
+// names the file and place, or the argument.
+
+/// One case: the command (`{scene}` is a good scene with a 10 mm loop source, `{dir}`
+/// the case's folder), a file to write first (name, bytes), and what stderr must start
+/// with (after substitution) or contain.
+struct ArgCase {
+    name: &'static str,
+    args: Vec<String>,
+    file: Option<(&'static str, Vec<u8>)>,
+    starts_with: Option<&'static str>,
+    contains: &'static str,
+}
+
+fn arg_cases() -> Vec<ArgCase> {
+    let argv = |a: &[&str]| a.iter().map(|s| s.to_string()).collect::<Vec<_>>();
+    let mut cases = vec![
+        ArgCase {
+            name: "a scene file that does not exist",
+            args: argv(&["check", "/nonexistent/scene.toml"]),
+            file: None,
+            starts_with: Some("/nonexistent/scene.toml:1:1:"),
+            contains: "",
+        },
+        ArgCase {
+            name: "a scene file that is not UTF-8",
+            args: argv(&["check", "{dir}/latin1.toml"]),
+            file: Some(("latin1.toml", b"[scene]\ntitle = \"caf\xe9\"\n".to_vec())),
+            starts_with: None,
+            contains: ":2:1: the scene file is not UTF-8",
+        },
+        // A point on the source wire is refused rather than answered with a huge number.
+        ArgCase {
+            name: "probe on the source wire",
+            args: argv(&["probe", "{scene}", "--at", "10,0,0 mm"]),
+            file: None,
+            starts_with: None,
+            contains: "inside the wire",
+        },
+        ArgCase {
+            name: "a bad row in a --points file",
+            args: argv(&["probe", "{scene}", "--points", "{dir}/bad.csv"]),
+            file: Some(("bad.csv", b"x,y,z\n0,0,0.01\n0,zero,0\n".to_vec())),
+            starts_with: Some("{dir}/bad.csv:3:3:"),
+            contains: "",
+        },
+    ];
+    for at in ["1,2", "a,b,c", "1,2,3 furlong", "1,2,nan"] {
+        cases.push(ArgCase {
+            name: "a bad --at",
+            args: argv(&["probe", "{scene}", "--at", at]),
+            file: None,
+            starts_with: None,
+            contains: "--at",
+        });
+    }
+    cases
+}
+
+#[test]
+fn unreadable_files_and_bad_arguments_exit_two() {
+    let base = std::env::temp_dir().join(format!("strayflux-args-{}", std::process::id()));
+    for (i, c) in arg_cases().into_iter().enumerate() {
+        let dir = base.join(format!("case{i}"));
+        std::fs::create_dir_all(&dir).unwrap();
+        let scene = dir.join("good.toml");
+        std::fs::write(&scene, SHIELD_BASE).unwrap();
+        if let Some((name, bytes)) = &c.file {
+            std::fs::write(dir.join(name), bytes).unwrap();
+        }
+        let sub = |a: &str| {
+            a.replace("{scene}", scene.to_str().unwrap())
+                .replace("{dir}", dir.to_str().unwrap())
+        };
+        let args: Vec<String> = c.args.iter().map(|a| sub(a)).collect();
+        let argv: Vec<&str> = args.iter().map(String::as_str).collect();
+        let out = run(&argv);
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{} {args:?}: {err}", c.name);
+        assert!(!err.contains("panicked"), "{}: {err}", c.name);
+        if let Some(prefix) = c.starts_with {
+            let prefix = sub(prefix);
+            assert!(
+                err.starts_with(&prefix),
+                "{}: expected `{prefix}` in `{err}`",
+                c.name
+            );
+        }
+        assert!(
+            err.contains(c.contains),
+            "{}: expected `{}` in `{err}`",
+            c.name,
+            c.contains
+        );
+    }
+}

@@ -218,42 +218,8 @@ fn check_json_has_the_contract_keys_and_values() {
     assert!((doc["near_field_limit_m"].as_f64().unwrap() / nf - 1.0).abs() < 1e-12);
 }
 
-// The bad-scene cases that were here are in tests/bad_input_table.rs.
-
-#[test]
-fn unreadable_files_and_bad_arguments_exit_two() {
-    let out = run(&["check", "/nonexistent/scene.toml"]);
-    assert_eq!(out.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&out.stderr).starts_with("/nonexistent/scene.toml:1:1:"));
-
-    let path = scene("latin1.toml", "");
-    std::fs::write(&path, b"[scene]\ntitle = \"caf\xe9\"\n").unwrap();
-    let out = run(&["check", path.to_str().unwrap()]);
-    assert_eq!(out.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&out.stderr).contains(":2:1: the scene file is not UTF-8"));
-
-    let good = scene("good.toml", &coaxial_scene(10.0, "1 V"));
-    for at in ["1,2", "a,b,c", "1,2,3 furlong", "1,2,nan"] {
-        let out = run(&["probe", good.to_str().unwrap(), "--at", at]);
-        assert_eq!(out.status.code(), Some(2), "--at {at}");
-        assert!(String::from_utf8_lossy(&out.stderr).contains("--at"));
-    }
-    // A point on the source wire is refused rather than answered with a huge number.
-    let out = run(&["probe", good.to_str().unwrap(), "--at", "20,0,0 mm"]);
-    assert_eq!(out.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&out.stderr).contains("inside the wire"));
-
-    let csv = scene("bad.csv", "x,y,z\n0,0,0.01\n0,zero,0\n");
-    let out = run(&[
-        "probe",
-        good.to_str().unwrap(),
-        "--points",
-        csv.to_str().unwrap(),
-    ]);
-    assert_eq!(out.status.code(), Some(2));
-    let err = String::from_utf8_lossy(&out.stderr);
-    assert!(err.starts_with(&format!("{}:3:3:", csv.display())), "{err}");
-}
+// The bad-scene, unreadable-file and bad-argument cases that were here are in
+// tests/bad_input_table.rs.
 
 #[test]
 fn every_kernel_path_reproduces_maxwell_and_a_bad_simd_cap_is_refused() {

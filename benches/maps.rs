@@ -24,26 +24,17 @@ use std::time::Instant;
 use strayflux::Scene;
 use strayflux::field::{Accelerated, b_at_points};
 
-const HELIX: &str = r#"[scene]
-title = "map benchmark: a 40-turn helix (invented)"
-[solver]
-tolerance = 1e-6
-[[source]]
-id = "coil"
-kind = "helix"
-radius = "10 mm"
-length = "20 mm"
-turns = 40
-leads = "none"
-wire_radius = "0.2 mm"
-current = { frequency = "100 kHz", peak = "1 A" }
-[[map]]
+/// The 40-turn helix of tests/fixtures/helix-40-turns.toml with a cube map.
+const HELIX: &str = concat!(
+    include_str!("../tests/fixtures/helix-40-turns.toml"),
+    r#"[[map]]
 id = "m"
 kind = "box"
 min = ["-HALF mm", "-HALF mm", "-HALF mm"]
 max = ["HALF mm", "HALF mm", "HALF mm"]
 cells = [CELLS, CELLS, CELLS]
-"#;
+"#
+);
 
 /// The helix scene with a cube map `half` mm each side of the centre, `cells` cells.
 fn helix(half: u32, cells: u32) -> String {

@@ -438,11 +438,12 @@ fn command_line_probe_and_sweep_agree_with_exact_within_the_tolerance() {
 #[test]
 #[ignore = "about three minutes: the full 128³ grid against direct sums"]
 fn full_128_cube_board_map_is_within_the_tolerance_of_direct_at_every_point() {
-    let text = "[solver]\ntolerance = 1e-6\n[[source]]\nid = \"coil\"\nkind = \"helix\"\n\
-                radius = \"10 mm\"\nlength = \"20 mm\"\nturns = 40\nleads = \"none\"\n\
-                wire_radius = \"0.2 mm\"\ncurrent = { frequency = \"100 kHz\", peak = \"1 A\" }\n\
-                [[map]]\nid = \"m\"\nkind = \"box\"\nmin = [-0.1, -0.1, -0.1]\n\
-                max = [0.1, 0.1, 0.1]\ncells = [127, 127, 127]\n";
+    // The helix of tests/fixtures/helix-40-turns.toml.
+    let text = concat!(
+        include_str!("fixtures/helix-40-turns.toml"),
+        "[[map]]\nid = \"m\"\nkind = \"box\"\nmin = [-0.1, -0.1, -0.1]\n\
+                max = [0.1, 0.1, 0.1]\ncells = [127, 127, 127]\n"
+    );
     let scene = Scene::parse("board.toml", text).unwrap();
     let points = scene.maps[0].all_points();
     let src = &scene.sources[0].conductors;

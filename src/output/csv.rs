@@ -1,7 +1,8 @@
 //! CSV tables of sweeps: one row per step.
 
 use crate::model::Vary;
-use crate::run::sweep::SweepResult;
+use crate::run::sweep::{SweepResult, SweepRow};
+use num_complex::Complex64;
 use std::fmt::Write;
 
 /// Header name of the swept value's column, with its unit.
@@ -26,14 +27,34 @@ pub fn value_in_unit(vary: &Vary, v: f64) -> f64 {
 /// (dB, empty without a limit), for worst-case sweeps the worst axis, and with
 /// `compare` the total with each shield alternative.
 pub fn sweep_csv(result: &SweepResult) -> String {
-    let vary = &result.spec.vary;
-    let mut out = String::new();
-    out.push_str(value_column(vary));
     let first = result
         .rows
         .first()
         .map(|r| r.lines.as_slice())
         .unwrap_or(&[]);
+    let shielded = result
+        .rows
+        .first()
+        .is_some_and(|r| !r.shielding_db.is_empty());
+    let mut out = String::new();
+    write_header(&mut out, result, first, shielded);
+    for (i, r) in result.rows.iter().enumerate() {
+        write_row(&mut out, result, i, r, first.len(), shielded);
+    }
+    out
+}
+
+/// The header line: the swept value, one EMF column per spectral line `first`
+/// (frequency in Hz, V rms), with `shielded` one shielding column per line (dB),
+/// the total (V rms), the margin (dB), the worst axis and each compared alternative.
+fn write_header(
+    out: &mut String,
+    result: &SweepResult,
+    first: &[(f64, Complex64)],
+    shielded: bool,
+) {
+    let vary = &result.spec.vary;
+    out.push_str(value_column(vary));
     for (k, (f, _)) in first.iter().enumerate() {
         if matches!(vary, Vary::Frequency) {
             let _ = write!(out, ",line{}_emf_v_rms", k + 1);
@@ -41,10 +62,6 @@ pub fn sweep_csv(result: &SweepResult) -> String {
             let _ = write!(out, ",emf_v_rms_at_{}_hz", trim_float(*f));
         }
     }
-    let shielded = result
-        .rows
-        .first()
-        .is_some_and(|r| !r.shielding_db.is_empty());
     if shielded {
         for (k, (f, _)) in first.iter().enumerate() {
             if matches!(vary, Vary::Frequency) {
@@ -67,36 +84,46 @@ pub fn sweep_csv(result: &SweepResult) -> String {
         }
     }
     out.push('\n');
-    for (i, r) in result.rows.iter().enumerate() {
-        let _ = write!(out, "{:e}", value_in_unit(vary, r.value));
-        for k in 0..first.len() {
-            let e = r
-                .lines
-                .get(k)
-                .map_or(0.0, |l| l.1.norm() / std::f64::consts::SQRT_2);
-            let _ = write!(out, ",{e:e}");
-        }
-        if shielded {
-            for k in 0..first.len() {
-                let _ = write!(out, ",{:.4}", r.shielding_db.get(k).copied().unwrap_or(0.0));
-            }
-        }
-        let _ = write!(out, ",{:e},", r.total_rms);
-        if let Some(l) = result.limit {
-            let m = crate::coupling::margin_db(l, r.total_rms);
-            if m.is_finite() {
-                let _ = write!(out, "{m:.4}");
-            }
-        }
-        if let Some(a) = r.worst_axis {
-            let _ = write!(out, ",{:.6},{:.6},{:.6}", a.x, a.y, a.z);
-        }
-        for a in &result.compare {
-            let _ = write!(out, ",{:e}", a.totals.get(i).copied().unwrap_or(f64::NAN));
-        }
-        out.push('\n');
+}
+
+/// Row `i` (step `r`): the swept value in its column's unit, `lines` EMFs (V rms),
+/// with `shielded` as many shieldings (dB), the total (V rms), the margin (dB),
+/// the worst axis (unit vector) and each compared alternative's total (V rms).
+fn write_row(
+    out: &mut String,
+    result: &SweepResult,
+    i: usize,
+    r: &SweepRow,
+    lines: usize,
+    shielded: bool,
+) {
+    let _ = write!(out, "{:e}", value_in_unit(&result.spec.vary, r.value));
+    for k in 0..lines {
+        let e = r
+            .lines
+            .get(k)
+            .map_or(0.0, |l| l.1.norm() / std::f64::consts::SQRT_2);
+        let _ = write!(out, ",{e:e}");
     }
-    out
+    if shielded {
+        for k in 0..lines {
+            let _ = write!(out, ",{:.4}", r.shielding_db.get(k).copied().unwrap_or(0.0));
+        }
+    }
+    let _ = write!(out, ",{:e},", r.total_rms);
+    if let Some(l) = result.limit {
+        let m = crate::coupling::margin_db(l, r.total_rms);
+        if m.is_finite() {
+            let _ = write!(out, "{m:.4}");
+        }
+    }
+    if let Some(a) = r.worst_axis {
+        let _ = write!(out, ",{:.6},{:.6},{:.6}", a.x, a.y, a.z);
+    }
+    for a in &result.compare {
+        let _ = write!(out, ",{:e}", a.totals.get(i).copied().unwrap_or(f64::NAN));
+    }
+    out.push('\n');
 }
 
 fn trim_float(f: f64) -> String {

@@ -49,13 +49,7 @@ pub fn plane_svg(
 ) -> Result<String, String> {
     let (u, v, flat) = axes(spec);
     let (nu, nv) = (spec.points[u], spec.points[v]);
-    let db: Vec<f64> = b
-        .iter()
-        .map(|p| {
-            let rms = (p.iter().map(|c| c.norm_sqr()).sum::<f64>() / 2.0).sqrt();
-            20.0 * (rms / 1e-6).max(1e-30).log10()
-        })
-        .collect();
+    let db = level_db(b);
     let top = db.iter().copied().fold(f64::NEG_INFINITY, f64::max);
     if !top.is_finite() {
         return Err("the field is zero over the whole plane: nothing to draw".into());
@@ -96,28 +90,52 @@ pub fn plane_svg(
             .label_style(("sans-serif", 14))
             .draw()
             .map_err(err)?;
-        // Coloured cells, every `stride`-th point so at most MAX_CELLS per axis.
-        let su = nu.div_ceil(MAX_CELLS).max(1);
-        let sv = nv.div_ceil(MAX_CELLS).max(1);
-        let at = |i: usize, j: usize| db[i + nu * j];
-        let mut cells = Vec::new();
-        for j in (0..nv).step_by(sv) {
-            for i in (0..nu).step_by(su) {
-                let x0 = (u0 + du * (i as f64 - su as f64 / 2.0)).max(u0);
-                let x1 = (u0 + du * (i as f64 + su as f64 / 2.0)).min(u1);
-                let y0 = (v0 + dv * (j as f64 - sv as f64 / 2.0)).max(v0);
-                let y1 = (v0 + dv * (j as f64 + sv as f64 / 2.0)).min(v1);
-                let t = (at(i, j) - bottom) / RANGE_DB;
-                cells.push(Rectangle::new([(x0, y0), (x1, y1)], colour(t).filled()));
-            }
-        }
-        chart.draw_series(cells).map_err(err)?;
+        draw_cells(&mut chart, &db, (nu, nv), (u0, v0, du, dv), bottom)?;
         draw_contours(&mut chart, &db, (nu, nv), (u0, v0, du, dv), bottom, top)?;
         draw_geometry(&mut chart, scene, spec, (u, v, flat))?;
         colour_bar(&bar, bottom, top)?;
         root.present().map_err(err)?;
     }
     Ok(svg)
+}
+
+/// |B| rms of each point of `b` (peak phasors, T) in dB relative to 1 µT.
+fn level_db(b: &[[Complex64; 3]]) -> Vec<f64> {
+    b.iter()
+        .map(|p| {
+            let rms = (p.iter().map(|c| c.norm_sqr()).sum::<f64>() / 2.0).sqrt();
+            20.0 * (rms / 1e-6).max(1e-30).log10()
+        })
+        .collect()
+}
+
+/// Coloured cells of the levels `db` (dB) on the `nu` × `nv` grid with origin
+/// (`u0`, `v0`) and spacing (`du`, `dv`) in mm, coloured from `bottom` (dB) upwards.
+fn draw_cells(
+    chart: &mut Chart<'_, '_>,
+    db: &[f64],
+    (nu, nv): (usize, usize),
+    (u0, v0, du, dv): (f64, f64, f64, f64),
+    bottom: f64,
+) -> Result<(), String> {
+    let (u1, v1) = (u0 + du * (nu - 1) as f64, v0 + dv * (nv - 1) as f64);
+    // Coloured cells, every `stride`-th point so at most MAX_CELLS per axis.
+    let su = nu.div_ceil(MAX_CELLS).max(1);
+    let sv = nv.div_ceil(MAX_CELLS).max(1);
+    let at = |i: usize, j: usize| db[i + nu * j];
+    let mut cells = Vec::new();
+    for j in (0..nv).step_by(sv) {
+        for i in (0..nu).step_by(su) {
+            let x0 = (u0 + du * (i as f64 - su as f64 / 2.0)).max(u0);
+            let x1 = (u0 + du * (i as f64 + su as f64 / 2.0)).min(u1);
+            let y0 = (v0 + dv * (j as f64 - sv as f64 / 2.0)).max(v0);
+            let y1 = (v0 + dv * (j as f64 + sv as f64 / 2.0)).min(v1);
+            let t = (at(i, j) - bottom) / RANGE_DB;
+            cells.push(Rectangle::new([(x0, y0), (x1, y1)], colour(t).filled()));
+        }
+    }
+    chart.draw_series(cells).map_err(err)?;
+    Ok(())
 }
 
 type Chart<'a, 'b> = ChartContext<

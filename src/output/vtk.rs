@@ -184,23 +184,7 @@ fn victim_path(edges: &[crate::geometry::Edge]) -> Vec<Vec3> {
 /// sheet is infinite; sheets with `fitted = false` are left out); an enclosure as the
 /// six faces of its box.
 pub fn scene_polydata(scene: &Scene, dipole_length: f64) -> Result<String, String> {
-    let mut paths: Vec<(usize, Vec<Vec3>)> = Vec::new();
-    let mut names = Vec::new();
-    for (i, s) in scene.sources.iter().enumerate() {
-        for w in &s.conductors.wires {
-            paths.push((i, w.vertices.clone()));
-        }
-        for d in &s.conductors.dipoles {
-            let half = d.moment_per_amp.normalize() * (dipole_length / 2.0);
-            paths.push((i, vec![d.position - half, d.position + half]));
-        }
-        names.push((format!("source:{}", s.id), i.to_string(), "Int32"));
-    }
-    let base = scene.sources.len();
-    for (j, v) in scene.victims.iter().enumerate() {
-        paths.push((base + j, victim_path(&v.edges)));
-        names.push((format!("victim:{}", v.id), (base + j).to_string(), "Int32"));
-    }
+    let (paths, mut names) = scene_paths(scene, dipole_length);
     let mut points = Vec::new();
     let mut connectivity = Vec::new();
     let mut offsets = Vec::new();
@@ -214,24 +198,8 @@ pub fn scene_polydata(scene: &Scene, dipole_length: f64) -> Result<String, Strin
         element.push(*idx as i32);
     }
     // Shields as finite quads (cells after the lines, as VTK orders them).
-    let quads = shield_quads(scene, &paths);
-    let mut poly_conn = Vec::new();
-    let mut poly_offsets = Vec::new();
-    for (next, (name, faces)) in (base + scene.victims.len()..).zip(quads) {
-        for face in faces {
-            for p in face {
-                poly_conn.push((points.len() / 3) as u64);
-                points.extend_from_slice(&[p.x, p.y, p.z]);
-            }
-            poly_offsets.push(poly_conn.len() as u64);
-            element.push(next as i32);
-        }
-        names.push((name, next.to_string(), "Int32"));
-    }
-    let polys = (!poly_offsets.is_empty()).then_some(VertexNumbers::XML {
-        connectivity: poly_conn,
-        offsets: poly_offsets,
-    });
+    let first = scene.sources.len() + scene.victims.len();
+    let polys = shield_polys(scene, &paths, first, &mut points, &mut element, &mut names);
     let vtk = Vtk {
         version: Version::new_xml(1, 0),
         title: String::new(),
@@ -253,6 +221,64 @@ pub fn scene_polydata(scene: &Scene, dipole_length: f64) -> Result<String, Strin
         }),
     };
     Ok(with_field_data(to_xml(vtk)?, "PolyData", &names))
+}
+
+/// Field-data entries: (name, value, VTK type).
+type FieldNames = Vec<(String, String, &'static str)>;
+
+/// Every source wire and victim path as (element index, vertices in m), point dipoles as
+/// a segment `dipole_length` (m) long along their moment, with the field-data names of
+/// the sources and victims.
+fn scene_paths(scene: &Scene, dipole_length: f64) -> (Vec<(usize, Vec<Vec3>)>, FieldNames) {
+    let mut paths: Vec<(usize, Vec<Vec3>)> = Vec::new();
+    let mut names = Vec::new();
+    for (i, s) in scene.sources.iter().enumerate() {
+        for w in &s.conductors.wires {
+            paths.push((i, w.vertices.clone()));
+        }
+        for d in &s.conductors.dipoles {
+            let half = d.moment_per_amp.normalize() * (dipole_length / 2.0);
+            paths.push((i, vec![d.position - half, d.position + half]));
+        }
+        names.push((format!("source:{}", s.id), i.to_string(), "Int32"));
+    }
+    let base = scene.sources.len();
+    for (j, v) in scene.victims.iter().enumerate() {
+        paths.push((base + j, victim_path(&v.edges)));
+        names.push((format!("victim:{}", v.id), (base + j).to_string(), "Int32"));
+    }
+    (paths, names)
+}
+
+/// Sheets and enclosures as polygons numbered from element `first`: appends their
+/// corners (m) to `points`, their indices to `element` and their names to `names`;
+/// `None` when the scene has none.
+fn shield_polys(
+    scene: &Scene,
+    paths: &[(usize, Vec<Vec3>)],
+    first: usize,
+    points: &mut Vec<f64>,
+    element: &mut Vec<i32>,
+    names: &mut FieldNames,
+) -> Option<VertexNumbers> {
+    let quads = shield_quads(scene, paths);
+    let mut poly_conn = Vec::new();
+    let mut poly_offsets = Vec::new();
+    for (next, (name, faces)) in (first..).zip(quads) {
+        for face in faces {
+            for p in face {
+                poly_conn.push((points.len() / 3) as u64);
+                points.extend_from_slice(&[p.x, p.y, p.z]);
+            }
+            poly_offsets.push(poly_conn.len() as u64);
+            element.push(next as i32);
+        }
+        names.push((name, next.to_string(), "Int32"));
+    }
+    (!poly_offsets.is_empty()).then_some(VertexNumbers::XML {
+        connectivity: poly_conn,
+        offsets: poly_offsets,
+    })
 }
 
 /// Faces of every sheet and enclosure: (field-data name, quads of four corners in m).

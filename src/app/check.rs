@@ -3,7 +3,8 @@
 use super::Outcome;
 use crate::Scene;
 use crate::error::Error;
-use crate::output::{json, text};
+use crate::output::text;
+use crate::output::{CheckReport, Report};
 use crate::units::{Dimension, parse_quantity};
 use std::path::Path;
 
@@ -11,11 +12,11 @@ use std::path::Path;
 pub fn check(path: &Path, as_json: bool) -> Result<Outcome, Error> {
     let scene = Scene::load(path)?;
     let lines = scene.line_frequencies();
-    let stdout = if as_json {
-        json::check(&scene, &lines)
-    } else {
-        text::check(&scene, &lines)
-    };
+    let stdout = CheckReport {
+        scene: &scene,
+        lines_hz: &lines,
+    }
+    .render(as_json);
     Ok(Outcome {
         stdout,
         warnings: scene.warnings.clone(),

@@ -3,7 +3,8 @@
 use super::Outcome;
 use crate::Scene;
 use crate::error::{Error, SolveError};
-use crate::output::{files, json, plot, text};
+use crate::output::{CoupleReport, Report};
+use crate::output::{files, plot};
 use crate::run::Solver;
 use crate::run::couple::{VictimReport, couple_victim};
 use std::path::Path;
@@ -54,11 +55,11 @@ pub fn couple(
             files::write_atomic(p, svg.as_bytes())?;
         }
     }
-    let stdout = if as_json {
-        json::couple(&reports)
-    } else {
-        text::couple(&scene, &reports)
-    };
+    let stdout = CoupleReport {
+        scene: &scene,
+        victims: &reports,
+    }
+    .render(as_json);
     Ok(Outcome {
         stdout,
         warnings,

@@ -5,7 +5,7 @@ use crate::Scene;
 use crate::error::Error;
 use crate::field::Vec3;
 use crate::model::SolverOptions;
-use crate::output::{json, text};
+use crate::output::{ProbeReport, Report};
 use crate::run::Solver;
 use crate::run::probe::probe;
 use crate::scene::points_csv::read_points_csv;
@@ -40,11 +40,7 @@ pub fn probe_points(
         warnings.extend(scene.far_point_warning(&format!("probe point {p:?}"), p));
     }
     let result = probe(&scene, &solver, &points)?;
-    let stdout = if as_json {
-        json::probe(&result)
-    } else {
-        text::probe(&result)
-    };
+    let stdout = ProbeReport { points: &result }.render(as_json);
     Ok(Outcome {
         stdout,
         warnings,

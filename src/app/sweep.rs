@@ -5,7 +5,8 @@ use crate::Scene;
 use crate::error::{Error, SolveError};
 use crate::model::SolverOptions;
 use crate::model::SweepSpec;
-use crate::output::{csv, files, json, plot, text};
+use crate::output::{Report, SweepReport};
+use crate::output::{csv, files, plot};
 use crate::run::Solver;
 use crate::run::sweep::SweepResult;
 use std::path::{Path, PathBuf};
@@ -42,11 +43,12 @@ pub fn sweep(
         files::write_atomic(p, text.as_bytes())?;
         written.push(p.display().to_string());
     }
-    let stdout = if as_json {
-        json::sweeps(&results)
-    } else {
-        text::sweeps(&scene, &results, &written)
-    };
+    let stdout = SweepReport {
+        scene: &scene,
+        results: &results,
+        written: &written,
+    }
+    .render(as_json);
     Ok(Outcome {
         stdout,
         warnings,

@@ -15,7 +15,7 @@ pub mod victim;
 pub use map::{MapLines, MapSpec};
 pub use material::Material;
 pub use options::{Evaluation, SolverOptions};
-pub use shield::{Barrier, Enclosure, Layer, Place, Sheet, source_points, victim_points};
+pub use shield::{Barrier, Enclosure, Layer, Place, Sheet, Side, source_points, victim_points};
 pub use source::{Source, SourceKind};
 pub use sweep::{SweepSpec, Vary};
 pub use victim::{Victim, VictimKind};

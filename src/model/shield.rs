@@ -68,11 +68,11 @@ pub enum Place {
 }
 
 impl Place {
-    /// Which side (false: below, true: above), if the point is outside the stack.
-    pub fn side(&self) -> Option<bool> {
+    /// Which side, if the point is outside the stack.
+    pub fn side(&self) -> Option<Side> {
         match self {
-            Place::Below(_) => Some(false),
-            Place::Above(_) => Some(true),
+            Place::Below(_) => Some(Side::Below),
+            Place::Above(_) => Some(Side::Above),
             _ => None,
         }
     }
@@ -100,6 +100,16 @@ type Placed = (usize, f64, f64, Vec<(Material, f64)>);
 
 /// Why sheets cannot be combined: the index of the offending sheet and the reason.
 pub type BarrierError = (usize, String);
+
+/// The side of the stack of sheets a point lies on: below the first sheet or above
+/// the last, along the sheets' normal.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Side {
+    /// Before the first sheet along the normal.
+    Below,
+    /// Beyond the last sheet along the normal.
+    Above,
+}
 
 impl Barrier {
     /// Combines `sheets` (at least one). They must be parallel and must not overlap.
@@ -269,15 +279,15 @@ pub fn source_points(s: &Source) -> Vec<Vec3> {
 
 impl Barrier {
     /// The side of the stack all `points` are on, or a reason naming `what`.
-    pub fn side_of(&self, points: &[Vec3], what: &str) -> Result<bool, String> {
+    pub fn side_of(&self, points: &[Vec3], what: &str) -> Result<Side, String> {
         let mut side = None;
         for p in points {
             let s = match self.place(p) {
                 Place::Below(d) | Place::Above(d) if d <= 0.0 => {
                     return Err(format!("{what} touches a shield face"));
                 }
-                Place::Below(_) => false,
-                Place::Above(_) => true,
+                Place::Below(_) => Side::Below,
+                Place::Above(_) => Side::Above,
                 Place::Inside(id) => {
                     return Err(format!("{what} reaches into shield \"{id}\""));
                 }
@@ -296,6 +306,6 @@ impl Barrier {
                 _ => {}
             }
         }
-        Ok(side.unwrap_or(false))
+        Ok(side.unwrap_or(Side::Below))
     }
 }

@@ -1,13 +1,13 @@
 //! The stack's response geometry: the frame and layer order each side sees.
 
 use super::spectral::{Path, SideFrame};
-use crate::model::{Barrier, Layer};
+use crate::model::{Barrier, Layer, Side};
 
 impl Barrier {
-    /// The frame and layer order seen by a source on `side` (false: below).
-    pub fn seen_from(&self, side: bool) -> (SideFrame, Vec<Layer>) {
+    /// The frame and layer order seen by a source on `side`.
+    pub fn seen_from(&self, side: Side) -> (SideFrame, Vec<Layer>) {
         let d = self.thickness();
-        if side {
+        if side == Side::Above {
             let mut layers = self.layers.clone();
             layers.reverse();
             (
@@ -35,7 +35,7 @@ impl Barrier {
     }
 
     /// The path from a source on `source_side` to a target on `target_side`.
-    pub fn path(source_side: bool, target_side: bool) -> Path {
+    pub fn path(source_side: Side, target_side: Side) -> Path {
         if source_side == target_side {
             Path::Reflected
         } else {

@@ -10,7 +10,8 @@ use crate::error::SolveError;
 use crate::field::{Accelerated, Conductors, Vec3};
 use crate::geometry::Edge;
 use crate::model::{
-    Barrier, Enclosure, Layer, Scene, SolverOptions, Source, Victim, source_points, victim_points,
+    Barrier, Enclosure, Layer, Scene, Side, SolverOptions, Source, Victim, source_points,
+    victim_points,
 };
 use num_complex::Complex64;
 use spectral::{Path, Plan, PlanError, SourceSpectrum, WORK_BUDGET};
@@ -131,8 +132,8 @@ fn lateral_disc(frame: &spectral::SideFrame, points: &[Vec3]) -> (f64, f64, f64)
 fn plan_for(
     barrier: &Barrier,
     conductors: &Conductors,
-    source_side: bool,
-    targets: &[(Vec3, bool)],
+    source_side: Side,
+    targets: &[(Vec3, Side)],
     tolerance: f64,
 ) -> Result<Plan, String> {
     let (frame, _) = barrier.seen_from(source_side);
@@ -178,13 +179,13 @@ fn plan_for(
 pub fn flux_model(
     barrier: &Barrier,
     conductors: &Conductors,
-    source_side: bool,
+    source_side: Side,
     edges: &[Edge],
     victim_points: &[Vec3],
-    victim_side: bool,
+    victim_side: Side,
     tolerance: f64,
 ) -> Result<Scattered, String> {
-    let targets: Vec<(Vec3, bool)> = victim_points.iter().map(|p| (*p, victim_side)).collect();
+    let targets: Vec<(Vec3, Side)> = victim_points.iter().map(|p| (*p, victim_side)).collect();
     let plan = plan_for(barrier, conductors, source_side, &targets, tolerance)?;
     let (frame, layers) = barrier.seen_from(source_side);
     let path = Barrier::path(source_side, victim_side);
@@ -205,8 +206,8 @@ pub fn flux_model(
 pub fn scattered_field(
     barrier: &Barrier,
     conductors: &Conductors,
-    source_side: bool,
-    points: &[(Vec3, bool)],
+    source_side: Side,
+    points: &[(Vec3, Side)],
     frequencies: &[f64],
     tolerance: f64,
     tick: &(dyn Fn(usize) + Sync),
@@ -293,13 +294,13 @@ pub fn shielded_lines(
         let (s_side, scattered) = match &scene.barrier {
             None => {
                 tick(points.len());
-                (false, None)
+                (Side::Below, None)
             }
             Some(b) => {
                 let s_side = b
                     .side_of(&src_points, &format!("source \"{}\"", s.id))
                     .map_err(SolveError::Shield)?;
-                let targets: Vec<(Vec3, bool)> =
+                let targets: Vec<(Vec3, Side)> =
                     points.iter().copied().zip(sides.iter().copied()).collect();
                 let f = scattered_field(
                     b,
@@ -333,11 +334,11 @@ pub fn shielded_lines(
     Ok(out)
 }
 
-/// Each point's side of the scene's sheets (false without sheets); fails for a point
+/// Each point's side of the scene's sheets (`Side::Below` without sheets); fails for a point
 /// inside or between them.
-fn point_sides(scene: &Scene, points: &[Vec3]) -> Result<Vec<bool>, SolveError> {
+fn point_sides(scene: &Scene, points: &[Vec3]) -> Result<Vec<Side>, SolveError> {
     match &scene.barrier {
-        None => Ok(vec![false; points.len()]),
+        None => Ok(vec![Side::Below; points.len()]),
         Some(b) => points
             .iter()
             .map(|p| {

@@ -229,6 +229,25 @@ pub struct Integral {
     pub converged: bool,
 }
 
+impl Integral {
+    /// The sum of `parts`, added in their order (so that the result does not depend on
+    /// how the parts were computed in parallel): values and magnitudes add, and the sum
+    /// converged if every part did.
+    pub fn sum(parts: impl IntoIterator<Item = Integral>) -> Integral {
+        let mut out = Integral {
+            value: 0.0,
+            magnitude: 0.0,
+            converged: true,
+        };
+        for p in parts {
+            out.value += p.value;
+            out.magnitude += p.magnitude;
+            out.converged &= p.converged;
+        }
+        out
+    }
+}
+
 /// ∫₀¹ f(t) dt split into `panels` equal first-pass panels. A panel whose Gauss and
 /// Gauss–Kronrod values agree to its share of `rel_tol` of the first-pass magnitude
 /// takes the Kronrod value; the others are halved until the two
@@ -272,17 +291,7 @@ pub fn integrate_unit<F: Fn(f64) -> (f64, f64) + Sync>(
             refine(f, (a, b), whole, abs_tol * (b - a), MAX_DEPTH, &mut budget)
         })
         .collect();
-    let mut out = Integral {
-        value: 0.0,
-        magnitude: 0.0,
-        converged: true,
-    };
-    for p in parts {
-        out.value += p.value;
-        out.magnitude += p.magnitude;
-        out.converged &= p.converged;
-    }
-    out
+    Integral::sum(parts)
 }
 
 fn refine<F: Fn(f64) -> (f64, f64)>(

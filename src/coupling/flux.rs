@@ -41,17 +41,7 @@ pub fn flux_per_amp_within<S: FieldSource + ?Sized>(
             integrate_unit(&f, panels, tolerance * 0.1)
         })
         .collect();
-    let mut total = Integral {
-        value: 0.0,
-        magnitude: 0.0,
-        converged: true,
-    };
-    for part in parts {
-        total.value += part.value;
-        total.magnitude += part.magnitude;
-        total.converged &= part.converged;
-    }
-    total
+    Integral::sum(parts)
 }
 
 /// One Gauss–Legendre panel per first-pass panel, without the halving check, when every

@@ -96,6 +96,37 @@ pub(crate) fn check_wire(v: &Value<'_, '_>, size: f64, wire_radius: f64) -> Resu
     Ok(())
 }
 
+/// Reads the required length `key` (m; `what` describes it) and checks that it exceeds
+/// the wire's diameter (`wire_radius`, m).
+pub(crate) fn wire_size(
+    t: &Table<'_, '_>,
+    key: &str,
+    what: &str,
+    wire_radius: f64,
+) -> Result<f64, InputError> {
+    let v = t.require(key, what)?;
+    let size = v.positive(Dimension::Length)?;
+    check_wire(&v, size, wire_radius)?;
+    Ok(size)
+}
+
+/// A rectangle's `width` and `height` (m): both required (checked first), then both
+/// positive, then both larger than the wire (`wire_radius`, m).
+pub(crate) fn rectangle_sides(
+    t: &Table<'_, '_>,
+    wire_radius: f64,
+) -> Result<(f64, f64), InputError> {
+    let w = t.require("width", "the side along local x")?;
+    let h = t.require("height", "the side along local y")?;
+    let (wv, hv) = (
+        w.positive(Dimension::Length)?,
+        h.positive(Dimension::Length)?,
+    );
+    check_wire(&w, wv, wire_radius)?;
+    check_wire(&h, hv, wire_radius)?;
+    Ok((wv, hv))
+}
+
 /// An array of at least `min` points (local, m) with no two consecutive ones equal.
 pub(crate) fn parse_points(v: &Value<'_, '_>, min: usize) -> Result<Vec<Vec3>, InputError> {
     let items = v.array()?;

@@ -1,7 +1,8 @@
 //! `[[source]]` tables → placed conductors and their current.
 
 use super::common::{
-    Context, check_wire, parse_frame, parse_id, parse_kind, parse_points, parse_polygon,
+    Context, parse_frame, parse_id, parse_kind, parse_points, parse_polygon, rectangle_sides,
+    wire_size,
 };
 use super::current::{CurrentContext, parse_current};
 use super::reader::{Table, Value};
@@ -157,9 +158,12 @@ fn single_wire(wire: Polyline) -> Conductors {
 
 /// The wire of a `loop` source (`radius`).
 fn parse_loop(t: &Table<'_, '_>, place: &Placement<'_>) -> Result<Polyline, InputError> {
-    let r = t.require("radius", "the loop radius, e.g. \"8 mm\"")?;
-    let radius = r.positive(Dimension::Length)?;
-    check_wire(&r, radius, place.wire_radius)?;
+    let radius = wire_size(
+        t,
+        "radius",
+        "the loop radius, e.g. \"8 mm\"",
+        place.wire_radius,
+    )?;
     Ok(circle_source(
         place.frame,
         radius,
@@ -171,14 +175,7 @@ fn parse_loop(t: &Table<'_, '_>, place: &Placement<'_>) -> Result<Polyline, Inpu
 /// The wire of a `rectangle` source (`width`, `height`).
 fn parse_rectangle(t: &Table<'_, '_>, place: &Placement<'_>) -> Result<Polyline, InputError> {
     let wire_radius = place.wire_radius;
-    let w = t.require("width", "the side along local x")?;
-    let h = t.require("height", "the side along local y")?;
-    let (wv, hv) = (
-        w.positive(Dimension::Length)?,
-        h.positive(Dimension::Length)?,
-    );
-    check_wire(&w, wv, wire_radius)?;
-    check_wire(&h, hv, wire_radius)?;
+    let (wv, hv) = rectangle_sides(t, wire_radius)?;
     Ok(polygon_source(
         place.frame,
         &rectangle_corners(wv, hv),

@@ -1,6 +1,9 @@
 //! `[[victim]]` tables → closed edge chains, turns, limits and self-inductance.
 
-use super::common::{Context, check_wire, parse_frame, parse_id, parse_kind, parse_polygon};
+use super::common::{
+    Context, check_wire, parse_frame, parse_id, parse_kind, parse_polygon, rectangle_sides,
+    wire_size,
+};
 use super::reader::Table;
 use crate::error::InputError;
 use crate::field::Vec3;
@@ -95,9 +98,7 @@ fn parse_loop(
     frame: &Frame,
     wire_radius: f64,
 ) -> Result<(Vec<Edge>, f64), InputError> {
-    let r = t.require("radius", "the loop radius, e.g. \"5 mm\"")?;
-    let radius = r.positive(Dimension::Length)?;
-    check_wire(&r, radius, wire_radius)?;
+    let radius = wire_size(t, "radius", "the loop radius, e.g. \"5 mm\"", wire_radius)?;
     Ok((
         vec![circle(frame, radius)],
         inductance::circle(radius, wire_radius),
@@ -111,14 +112,7 @@ fn parse_rectangle(
     wire_radius: f64,
     ctx: &Context,
 ) -> Result<(Vec<Edge>, f64), InputError> {
-    let w = t.require("width", "the side along local x")?;
-    let h = t.require("height", "the side along local y")?;
-    let (wv, hv) = (
-        w.positive(Dimension::Length)?,
-        h.positive(Dimension::Length)?,
-    );
-    check_wire(&w, wv, wire_radius)?;
-    check_wire(&h, hv, wire_radius)?;
+    let (wv, hv) = rectangle_sides(t, wire_radius)?;
     Ok(straight(
         frame,
         &rectangle_corners(wv, hv),

@@ -4,7 +4,7 @@
 
 use crate::units::format_si;
 use plotters::prelude::*;
-use plotters::style::full_palette::RED_700;
+use plotters::style::full_palette::{GREY_500, RED_700};
 
 mod spectrum;
 mod sweep;
@@ -192,6 +192,21 @@ fn axes_chart<'a, 'b>(
         .draw()
         .map_err(err)?;
     Ok(chart)
+}
+
+/// The legend in `corner`, on a nearly opaque white box.
+fn draw_legend<'a, 'b: 'a>(
+    chart: &mut Chart<'a, 'b>,
+    corner: SeriesLabelPosition,
+) -> Result<(), PlotError> {
+    chart
+        .configure_series_labels()
+        .position(corner)
+        .background_style(WHITE.mix(0.9))
+        .border_style(GREY_500)
+        .label_font(("sans-serif", 15))
+        .draw()
+        .map_err(err)
 }
 
 type Chart<'a, 'b> = ChartContext<'a, SVGBackend<'b>, Cartesian2d<Ticked, Ticked>>;

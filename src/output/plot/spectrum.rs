@@ -1,7 +1,7 @@
 //! A victim's EMF spectrum: one stem per line, with the limit.
 
 use super::*;
-use plotters::style::full_palette::{BLUE_700, GREY_500};
+use plotters::style::full_palette::BLUE_700;
 
 /// A victim's EMF spectrum as SVG: one stem per line (rms), with the limit.
 pub fn spectrum_svg(
@@ -65,14 +65,7 @@ pub fn spectrum_svg(
         if let Some(l) = limit {
             let label = format!("limit on the total {}", format_si(l, "V", 3));
             limit_line(&mut chart, (x0, x1), y_axis.to_plot(l), label)?;
-            chart
-                .configure_series_labels()
-                .position(SeriesLabelPosition::UpperRight)
-                .background_style(WHITE.mix(0.9))
-                .border_style(GREY_500)
-                .label_font(("sans-serif", 15))
-                .draw()
-                .map_err(err)?;
+            draw_legend(&mut chart, SeriesLabelPosition::UpperRight)?;
         }
         root.present().map_err(err)?;
     }

@@ -1,10 +1,12 @@
 //! EMF versus the swept value: totals, lines, design options, limit and safe distance.
 
-use super::{Axis, Chart, LINE_COLOURS, PlotError, SIZE, axes_chart, err, limit_line, padded};
+use super::{
+    Axis, Chart, LINE_COLOURS, PlotError, SIZE, axes_chart, draw_legend, err, limit_line, padded,
+};
 use crate::run::sweep::SweepResult;
 use crate::units::format_si;
 use plotters::prelude::*;
-use plotters::style::full_palette::{BLUE_700, GREY_500, ORANGE_700};
+use plotters::style::full_palette::{BLUE_700, ORANGE_700};
 
 /// The sweep's plot as SVG text: total EMF and each line's EMF versus the swept value,
 /// the victim's limit, and the safe distance when there is one.
@@ -87,14 +89,7 @@ pub fn sweep_svg(result: &SweepResult, victim_id: &str) -> Result<String, PlotEr
             crate::model::Vary::Frequency => SeriesLabelPosition::UpperLeft,
             _ => SeriesLabelPosition::UpperRight,
         };
-        chart
-            .configure_series_labels()
-            .position(corner)
-            .background_style(WHITE.mix(0.9))
-            .border_style(GREY_500)
-            .label_font(("sans-serif", 15))
-            .draw()
-            .map_err(err)?;
+        draw_legend(&mut chart, corner)?;
         root.present().map_err(err)?;
     }
     Ok(svg)

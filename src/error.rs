@@ -84,12 +84,17 @@ pub enum SolveError {
     Shield(String),
     /// A sweep's design option (`compare`) cannot be fitted alone.
     Alternative(String),
+    /// A sum of EMF lines that does not converge (a waveform with an ideal edge) was
+    /// asked for where no result can stand without it (a sweep of totals).
+    Diverges(String),
 }
 
 impl fmt::Display for SolveError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
-            SolveError::Shield(m) | SolveError::Alternative(m) => f.write_str(m),
+            SolveError::Shield(m) | SolveError::Alternative(m) | SolveError::Diverges(m) => {
+                f.write_str(m)
+            }
         }
     }
 }

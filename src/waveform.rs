@@ -72,8 +72,12 @@ pub enum Waveform {
     Square,
     /// Linear rise over half a period, linear fall over the other half.
     Triangle,
-    /// Linear rise over the whole period, then an ideal drop.
-    Sawtooth,
+    /// Linear rise, then a linear drop (the flyback) over `fall` of the period; an
+    /// ideal (instant) drop when `fall` is 0.
+    Sawtooth {
+        /// Duration of the drop, fraction of the period (0 ≤ fall < 1).
+        fall: f64,
+    },
     /// Two levels joined by linear edges.
     Trapezoid {
         /// Rising edge, full 0–100 % duration, fraction of the period (≥ 0).
@@ -97,7 +101,9 @@ impl Waveform {
                 Shape::new(vec![v(0.0, -1.0), v(0.0, 1.0), v(0.5, 1.0), v(0.5, -1.0)])
             }
             Waveform::Triangle => Shape::new(vec![v(0.0, -1.0), v(0.5, 1.0)]),
-            Waveform::Sawtooth => Shape::new(vec![v(0.0, -1.0), v(1.0, 1.0)]),
+            Waveform::Sawtooth { fall } => {
+                Shape::new(vec![v(0.0, -1.0), v(1.0 - fall.clamp(0.0, 1.0), 1.0)])
+            }
             Waveform::Trapezoid { rise, fall, duty } => {
                 let mut times = [
                     -rise / 2.0,
@@ -184,6 +190,28 @@ impl Shape {
     pub fn peak_to_peak(&self) -> f64 {
         let values = self.vertices.iter().map(|v| v.value);
         values.clone().fold(f64::MIN, f64::max) - values.fold(f64::MAX, f64::min)
+    }
+
+    /// The mean square over a period of the shape's derivative d/dτ (τ = t/T), in shape
+    /// units squared: a piece of rise Δx over width w has slope Δx/w for a share w of
+    /// the period, so the mean is Σ Δx²/w; infinite when the shape jumps. By Parseval's
+    /// theorem this equals Σ_n (2πn)²·|2c_n|²/2 over every harmonic.
+    pub fn slope_mean_square(&self) -> f64 {
+        self.pieces()
+            .filter(|p| p.to != p.from)
+            .map(|p| {
+                if p.width > 0.0 {
+                    (p.to - p.from).powi(2) / p.width
+                } else {
+                    f64::INFINITY
+                }
+            })
+            .sum()
+    }
+
+    /// Whether the shape jumps somewhere (an ideal edge).
+    pub fn has_jump(&self) -> bool {
+        self.pieces().any(|p| p.width == 0.0 && p.to != p.from)
     }
 
     /// The complex Fourier coefficient c_n (n ≥ 1) of the shape, in the shape's units.
@@ -278,6 +306,9 @@ pub struct Series {
     /// True when the tolerance rule stopped at [`MAX_DEFAULT_LINES`] with lines above
     /// the tolerance possibly left beyond.
     pub capped: bool,
+    /// The mean square over a period of the current's time derivative, A²/s² (every
+    /// line, listed or not); infinite when the shape has a jump.
+    pub slope_mean_square: f64,
 }
 
 /// The spectral lines of `shape` repeating at `frequency` Hz, scaled to `amplitude`,
@@ -299,7 +330,11 @@ pub fn series(
             current: 2.0 * scale * c * Complex64::from_polar(1.0, n as f64 * shift),
         })
         .collect();
-    Series { lines, capped }
+    Series {
+        lines,
+        capped,
+        slope_mean_square: (scale * frequency).powi(2) * shape.slope_mean_square(),
+    }
 }
 
 /// The harmonic orders and coefficients kept under `count`, and whether the cap cut it.
@@ -368,7 +403,7 @@ mod tests {
         let shapes = [
             Waveform::Square.shape(),
             Waveform::Triangle.shape(),
-            Waveform::Sawtooth.shape(),
+            Waveform::Sawtooth { fall: 0.0 }.shape(),
             Waveform::Trapezoid {
                 rise: 0.1,
                 fall: 0.03,

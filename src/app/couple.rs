@@ -2,11 +2,13 @@
 
 use super::Outcome;
 use crate::Scene;
+use crate::coupling::Total;
 use crate::error::{Error, SolveError};
 use crate::output::{CoupleReport, Report};
 use crate::output::{files, plot};
 use crate::run::Solver;
 use crate::run::couple::{VictimReport, couple_victim};
+use crate::units::format_si;
 use std::path::Path;
 
 /// `couple SCENE`: M, EMF per line, totals and margins for every victim; with `plot_dir`
@@ -37,7 +39,11 @@ pub fn couple(
             ));
         }
     }
-    let over = reports.iter().any(|r| r.pass() == Some(false));
+    warnings.extend(reports.iter().filter_map(omitted_warning));
+    // A victim with a limit but no converging total has no verdict: a gate fails it.
+    let over = reports
+        .iter()
+        .any(|r| r.pass() == Some(false) || (r.limit.is_some() && r.pass().is_none()));
     if let Some(dir) = plot_dir {
         let mut files = Vec::new();
         for r in &reports {
@@ -65,4 +71,39 @@ pub fn couple(
         warnings,
         exit: if strict && over { 3 } else { 0 },
     })
+}
+
+/// Unlisted lines that add more than this to a victim's listed total get a warning, dB.
+pub const OMITTED_SHARE_WARN_DB: f64 = 1.0;
+
+/// A warning when the lines left unlisted add more than [`OMITTED_SHARE_WARN_DB`] to a
+/// victim's total, with the numbers.
+fn omitted_warning(r: &VictimReport) -> Option<String> {
+    let Total::Converged {
+        rms,
+        listed,
+        omitted,
+        omitted_exact,
+    } = r.total
+    else {
+        return None;
+    };
+    let share = r.total.omitted_share_db()?;
+    if share <= OMITTED_SHARE_WARN_DB {
+        return None;
+    }
+    let how = if omitted_exact {
+        "in closed form, so the total is complete"
+    } else {
+        "as an estimate (see docs/model.md, \"Lines above those listed\"): list more lines \
+         with `harmonics` to narrow it"
+    };
+    Some(format!(
+        "victim \"{}\": the listed spectral lines carry {} rms, but the lines above them \
+         add {} rms ({share:.1} dB): the total {} rms includes them, {how}",
+        r.id,
+        format_si(listed, "V", 4),
+        format_si(omitted, "V", 4),
+        format_si(rms, "V", 4),
+    ))
 }

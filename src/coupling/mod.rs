@@ -14,7 +14,7 @@ pub use flux::{flux_per_amp, flux_per_amp_within};
 pub use pair::{PairModel, SourceAids};
 
 use crate::shield::SHIELDING_CAP_DB;
-use crate::spectrum::{Line, same_frequency};
+use crate::spectrum::{Line, Tail, same_frequency};
 use num_complex::Complex64;
 use std::f64::consts::{SQRT_2, TAU};
 /// EMF phasor (V, peak) induced by `line` through mutual inductance `m` (H):
@@ -47,11 +47,52 @@ pub struct SourceCoupling {
     pub lines: Vec<LineEmf>,
     /// Whether the flux integral met the tolerance.
     pub converged: bool,
+    /// The EMF of the source's lines above the listed ones.
+    pub omitted: OmittedEmf,
+}
+
+/// The EMF that a source's unlisted lines add to a victim.
+#[derive(Clone, Debug, PartialEq)]
+pub enum OmittedEmf {
+    /// Their rms together, V. `exact` is false when it is an estimate: behind a shield
+    /// the coupling depends on frequency, and the estimate holds the highest listed
+    /// line's coupling for every line above it.
+    Rms {
+        /// rms of every unlisted line together, V.
+        volts: f64,
+        /// Whether the value is exact (closed form) rather than an estimate.
+        exact: bool,
+    },
+    /// The waveform has an ideal edge and the sum does not converge (the scene's
+    /// warning says how to give the edge its duration).
+    Diverges,
+}
+
+impl OmittedEmf {
+    /// The omitted EMF of a source with current `tail` beyond `lines`, coupled through
+    /// `m` (H, turns included) for every unlisted line; `exact` when `m` is the same at
+    /// every frequency. By Parseval's theorem the unlisted lines' EMF rms is |m| times
+    /// the rms of the unlisted part of di/dt.
+    pub fn new(tail: &Tail, lines: &[Line], m: f64, exact: bool) -> OmittedEmf {
+        match tail.slope_rms(lines) {
+            Some(slope) => OmittedEmf::Rms {
+                volts: m.abs() * slope,
+                exact: exact || slope == 0.0,
+            },
+            None if m == 0.0 => OmittedEmf::Rms {
+                volts: 0.0,
+                exact: true,
+            },
+            None => OmittedEmf::Diverges,
+        }
+    }
 }
 
 impl SourceCoupling {
-    /// Couple a source with lines `lines` through mutual inductance `m` (H).
-    pub fn new(id: &str, m: f64, lines: &[Line], converged: bool) -> Self {
+    /// Couple a source with lines `lines` through mutual inductance `m` (H); `tail` is
+    /// what the lines leave out of the source's waveform.
+    pub fn new(id: &str, m: f64, lines: &[Line], tail: &Tail, converged: bool) -> Self {
+        let omitted = OmittedEmf::new(tail, lines, m, true);
         let lines = lines
             .iter()
             .map(|l| LineEmf {
@@ -64,15 +105,28 @@ impl SourceCoupling {
         SourceCoupling {
             id: id.to_string(),
             mutual_inductance: m,
+            omitted,
             lines,
             converged,
         }
     }
 
-    /// Couple a source with lines `lines` through `model`, for a victim of `turns`.
-    pub fn from_model(id: &str, turns: f64, model: &PairModel, lines: &[Line]) -> Self {
-        let mut out = SourceCoupling::new(id, turns * model.flux, lines, model.converged);
+    /// Couple a source with lines `lines` (and what they leave out, `tail`) through
+    /// `model`, for a victim of `turns`.
+    pub fn from_model(
+        id: &str,
+        turns: f64,
+        model: &PairModel,
+        lines: &[Line],
+        tail: &Tail,
+    ) -> Self {
+        let mut out = SourceCoupling::new(id, turns * model.flux, lines, tail, model.converged);
         if model.is_shielded() {
+            // Above the listed lines the shielded coupling is taken as that of the
+            // highest one (an estimate; for conducting sheets it only falls further).
+            let top = lines.last().map_or(0.0, |l| l.frequency);
+            let m_top = turns * model.shielded_flux(top).norm();
+            out.omitted = OmittedEmf::new(tail, lines, m_top, false);
             for l in &mut out.lines {
                 let phi = model.shielded_flux(l.frequency);
                 let free = l.emf;
@@ -123,6 +177,77 @@ pub fn total_rms(by_frequency: &[(f64, Complex64)]) -> f64 {
         .sum::<f64>()
         .sqrt()
         / SQRT_2
+}
+
+/// A victim's total rms EMF over every line of every source, listed or not.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Total {
+    /// The sum converges.
+    Converged {
+        /// The total, V rms: √(listed² + omitted²).
+        rms: f64,
+        /// The listed lines' root-sum-square, V rms.
+        listed: f64,
+        /// Every unlisted line together, V rms.
+        omitted: f64,
+        /// Whether `omitted` is exact. It is not behind a shield (the highest listed
+        /// line's coupling is held above it) or when several sources leave lines out
+        /// (their omitted parts are then added as magnitudes, an upper bound).
+        omitted_exact: bool,
+    },
+    /// A source's waveform has an ideal edge and its EMF has no finite total: the id of
+    /// the first such source.
+    Diverges(String),
+}
+
+impl Total {
+    /// The victim's total from its listed phasor sums `by_frequency` (Hz, V peak) and
+    /// its sources' omitted lines. Omitted lines are taken at frequencies apart from
+    /// every listed one.
+    pub fn new(by_frequency: &[(f64, Complex64)], sources: &[SourceCoupling]) -> Total {
+        let listed = total_rms(by_frequency);
+        let mut omitted = 0.0;
+        let mut exact = true;
+        let mut parts = 0;
+        for s in sources {
+            match &s.omitted {
+                OmittedEmf::Diverges => return Total::Diverges(s.id.clone()),
+                OmittedEmf::Rms { volts, exact: e } if *volts > 0.0 => {
+                    omitted += volts;
+                    exact &= e;
+                    parts += 1;
+                }
+                OmittedEmf::Rms { .. } => {}
+            }
+        }
+        Total::Converged {
+            rms: listed.hypot(omitted),
+            listed,
+            omitted,
+            omitted_exact: exact && parts <= 1,
+        }
+    }
+
+    /// The total, V rms; `None` when it does not converge.
+    pub fn rms(&self) -> Option<f64> {
+        match self {
+            Total::Converged { rms, .. } => Some(*rms),
+            Total::Diverges(_) => None,
+        }
+    }
+
+    /// How much the unlisted lines add to the listed ones, dB (20·log10(total /
+    /// listed)); `None` when the total does not converge.
+    pub fn omitted_share_db(&self) -> Option<f64> {
+        match self {
+            Total::Converged { rms, listed, .. } if *listed > 0.0 => {
+                Some(20.0 * (rms / listed).log10())
+            }
+            Total::Converged { rms, .. } if *rms == 0.0 => Some(0.0),
+            Total::Converged { .. } => Some(f64::INFINITY),
+            Total::Diverges(_) => None,
+        }
+    }
 }
 
 /// Margin in dB of an rms total against an rms limit: 20·log10(limit / total);

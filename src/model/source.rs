@@ -2,7 +2,7 @@
 
 use crate::field::{Conductors, Vec3};
 use crate::geometry::Frame;
-use crate::spectrum::Line;
+use crate::spectrum::{Line, Tail};
 
 /// The kinds of source a scene can name (`kind = "..."`).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -98,6 +98,8 @@ pub struct Source {
     pub conductors: Conductors,
     /// Current spectrum, peak phasors, ascending frequency.
     pub lines: Vec<Line>,
+    /// What `lines` leave out of the waveform's series, in closed form.
+    pub tail: Tail,
     /// With `calibrate`: the point (m) and the rms |B| (T) the current was scaled to.
     pub calibration: Option<(Vec3, f64)>,
 }

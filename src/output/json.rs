@@ -2,6 +2,7 @@
 //! unit in the name (`total_emf_v_rms`, `mutual_inductance_h`).
 
 use crate::Scene;
+use crate::coupling::Total;
 use crate::run::couple::VictimReport;
 use crate::run::probe::ProbePoint;
 use serde::Serialize;
@@ -68,11 +69,15 @@ struct CoupleDoc {
 struct CoupleVictim {
     id: String,
     limit_v_rms: Option<f64>,
-    total_emf_v_rms: f64,
+    total_emf_v_rms: Option<f64>,
     margin_db: Option<f64>,
     pass: Option<bool>,
+    total_converges: bool,
+    listed_emf_v_rms: f64,
+    omitted_emf_v_rms: Option<f64>,
+    omitted_exact: Option<bool>,
     #[serde(skip_serializing_if = "Option::is_none")]
-    load_v_rms: Option<f64>,
+    load_v_rms: Option<Option<f64>>,
     sources: Vec<CoupleSource>,
 }
 
@@ -93,17 +98,33 @@ struct CoupleLine {
     shielding_db: f64,
 }
 
-/// `couple --json`. A margin that is infinite (zero EMF) is written as null.
+/// An angle in degrees with a rounding-noise zero (below 5e-13°, or −0) written as 0.
+fn zero_if_tiny(deg: f64) -> f64 {
+    if deg.abs() < 5e-13 { 0.0 } else { deg }
+}
+
+/// `couple --json`. A margin that is infinite (zero EMF) is written as null; a total
+/// that does not converge (an ideal edge) is null, with `total_converges` false.
 pub fn couple(reports: &[VictimReport]) -> String {
     let victims = reports
         .iter()
         .map(|r| CoupleVictim {
             id: r.id.clone(),
             limit_v_rms: r.limit,
-            total_emf_v_rms: r.total_rms,
+            total_emf_v_rms: r.total_rms(),
             margin_db: r.margin_db().filter(|m| m.is_finite()),
             pass: r.pass(),
-            load_v_rms: r.load_rms,
+            total_converges: r.total_rms().is_some(),
+            listed_emf_v_rms: crate::coupling::total_rms(&r.by_frequency),
+            omitted_emf_v_rms: match r.total {
+                Total::Converged { omitted, .. } => Some(omitted),
+                Total::Diverges(_) => None,
+            },
+            omitted_exact: match r.total {
+                Total::Converged { omitted_exact, .. } => Some(omitted_exact),
+                Total::Diverges(_) => None,
+            },
+            load_v_rms: r.load.as_ref().map(Total::rms),
             sources: r
                 .sources
                 .iter()
@@ -118,7 +139,7 @@ pub fn couple(reports: &[VictimReport]) -> String {
                             current_a_peak: l.current.norm(),
                             emf_v_peak: l.emf.norm(),
                             emf_v_rms: l.emf.norm() / std::f64::consts::SQRT_2,
-                            emf_phase_deg: l.emf.arg().to_degrees(),
+                            emf_phase_deg: zero_if_tiny(l.emf.arg().to_degrees()),
                             shielding_db: l.shielding_db,
                         })
                         .collect(),

@@ -3,12 +3,12 @@
 
 use super::Solver;
 use super::orientation::{Orientation, search, small_loop_matrix};
-use crate::coupling::{PairModel, SourceCoupling, emf_by_frequency, total_rms};
+use crate::coupling::{PairModel, SourceCoupling, Total, emf_by_frequency};
 use crate::error::SolveError;
 use crate::field::Vec3;
 use crate::model::sweep::victim_at;
-use crate::model::{Scene, SweepSpec, Vary, Victim};
-use crate::spectrum::Line;
+use crate::model::{Scene, Source, SweepSpec, Vary, Victim};
+use crate::spectrum::{Line, Tail};
 use num_complex::Complex64;
 use rayon::prelude::*;
 
@@ -133,17 +133,20 @@ fn emf_from_models(
         .iter()
         .zip(models)
         .zip(lines)
-        .map(|((s, m), l)| SourceCoupling::from_model(&s.id, victim.turns, m, l))
+        .map(|((s, m), l)| SourceCoupling::from_model(&s.id, victim.turns, m, l, &tail_of(s, l)))
         .collect();
     let by_f = emf_by_frequency(&couplings);
-    let total = total_rms(&by_f);
+    // `run` refuses sources whose total diverges before any step.
+    let total = Total::new(&by_f, &couplings).rms().unwrap_or(f64::INFINITY);
     let shielding = if models.iter().any(PairModel::is_shielded) {
         let free: Vec<SourceCoupling> = scene
             .sources
             .iter()
             .zip(models)
             .zip(lines)
-            .map(|((s, m), l)| SourceCoupling::new(&s.id, victim.turns * m.flux, l, true))
+            .map(|((s, m), l)| {
+                SourceCoupling::new(&s.id, victim.turns * m.flux, l, &Tail::None, true)
+            })
             .collect();
         emf_by_frequency(&free)
             .iter()
@@ -158,6 +161,29 @@ fn emf_from_models(
         total_rms: total,
         shielding_db: shielding,
     }
+}
+
+/// The tail of source `s` when its lines are `lines`: a frequency sweep moves every
+/// line by the same factor, and di/dt scales with it.
+fn tail_of(s: &Source, lines: &[Line]) -> Tail {
+    match (s.lines.first(), lines.first()) {
+        (Some(a), Some(b)) => s.tail.scaled(1.0, b.frequency / a.frequency),
+        _ => s.tail.clone(),
+    }
+}
+
+/// Fails when a source's waveform has an ideal edge: its EMF has no finite total, so a
+/// sweep of totals means nothing.
+fn check_converges(scene: &Scene, spec: &SweepSpec) -> Result<(), SolveError> {
+    for s in &scene.sources {
+        if let Tail::IdealEdge(note) = &s.tail {
+            return Err(SolveError::Diverges(format!(
+                "{note} (sweep \"{}\" sums the EMF of every line)",
+                spec.id
+            )));
+        }
+    }
+    Ok(())
 }
 
 /// The total for the orientation search: NaN where a shield cannot be solved (a tilted
@@ -218,6 +244,7 @@ pub fn run(
     spec: &SweepSpec,
     progress: &(dyn Fn() + Sync),
 ) -> Result<SweepResult, SolveError> {
+    check_converges(scene, spec)?;
     let victim = &scene.victims[spec.victim];
     // A distance or angle sweep places the victim many times: far steps then take the
     // flux from each source's multipole expansion where that is proven within the

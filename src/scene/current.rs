@@ -2,7 +2,7 @@
 
 use super::reader::{Table, Value};
 use crate::error::InputError;
-use crate::spectrum::{Line, same_frequency};
+use crate::spectrum::{Line, Tail, same_frequency};
 use crate::units::{Dimension, format_si};
 use crate::waveform::{self, Amplitude, LineCount, Waveform};
 
@@ -39,19 +39,32 @@ pub struct CurrentContext<'a> {
     pub amplitude_required: bool,
 }
 
-/// Reads a `current` table into its spectral lines (peak phasors), ascending frequency.
-/// A waveform other than a sine becomes its Fourier series (see [`crate::waveform`]);
-/// a note goes into `warnings` when the default rule stops at its line cap.
+/// A source current read from its table: the listed spectral lines and what they leave
+/// out.
+pub struct Current {
+    /// Peak phasors, A, ascending frequency.
+    pub lines: Vec<Line>,
+    /// The rest of the waveform's series above the listed lines.
+    pub tail: Tail,
+}
+
+/// Reads a `current` table into its spectral lines (peak phasors), ascending frequency,
+/// and the closed-form description of the lines left out. A waveform other than a sine
+/// becomes its Fourier series (see [`crate::waveform`]). A waveform with an ideal edge
+/// gets a warning: its EMF has no converging total.
 pub fn parse_current(
     value: &Value<'_, '_>,
     ctx: &CurrentContext<'_>,
     warnings: &mut Vec<String>,
-) -> Result<Vec<Line>, InputError> {
+) -> Result<Current, InputError> {
     let table = value.table()?;
     if let Some(lines) = table.get("lines") {
         let out = parse_lines(&lines)?;
         table.finish(&[], "a current given as `lines` (remove the other keys)")?;
-        return Ok(out);
+        return Ok(Current {
+            lines: out,
+            tail: Tail::None,
+        });
     }
     let name = waveform_name(&table)?;
     let amplitude = match amplitude(&table, &["peak", "rms", "peak_to_peak"])? {
@@ -71,16 +84,58 @@ pub fn parse_current(
             h.count(1)?;
         }
         table.finish(CURRENT_KEYS, "a sine current")?;
-        return Ok(vec![Line::new(frequency, amplitude.sine_peak(), phase)]);
+        return Ok(Current {
+            lines: vec![Line::new(frequency, amplitude.sine_peak(), phase)],
+            tail: Tail::None,
+        });
     }
     let waveform = parse_waveform(&table, name, frequency)?;
     let count = line_count(&table, ctx.tolerance)?;
     table.finish(CURRENT_KEYS, &format!("a {name} current"))?;
-    let series = waveform::series(&waveform.shape(), frequency, amplitude, phase, count);
-    if series.capped {
-        warnings.push(cap_warning(ctx, name, &series.lines));
+    let shape = waveform.shape();
+    let series = waveform::series(&shape, frequency, amplitude, phase, count);
+    let tail = if shape.has_jump() {
+        let note = ideal_edge_note(&table, value, name, ctx.source_id);
+        warnings.push(note.clone());
+        Tail::IdealEdge(note)
+    } else {
+        Tail::Slope(series.slope_mean_square)
+    };
+    Ok(Current {
+        lines: series.lines,
+        tail,
+    })
+}
+
+/// The located note for a waveform with an ideal edge, saying which key gives the
+/// edge its duration.
+fn ideal_edge_note(table: &Table<'_, '_>, value: &Value<'_, '_>, name: &str, id: &str) -> String {
+    let (key, what) = match name {
+        "sawtooth" => (
+            "waveform",
+            "a sawtooth's drop is ideal (instant); give the flyback time as `fall`, \
+             e.g. fall = \"12 us\""
+                .to_string(),
+        ),
+        "square" => (
+            "waveform",
+            "a square wave's edges are ideal (instant); give their duration as `rise` (and \
+             `fall`), e.g. rise = \"100 ns\""
+                .to_string(),
+        ),
+        _ => (
+            if table.has("fall") { "fall" } else { "rise" },
+            format!("a {name} edge of zero duration is ideal; give it a duration"),
+        ),
+    };
+    let reason = format!(
+        "source \"{id}\": {what}. The EMF of an ideal edge grows with frequency without \
+         end, so its total does not converge: no verdict can be given"
+    );
+    match table.get(key) {
+        Some(v) => v.error(reason).to_string(),
+        None => value.error(reason).to_string(),
     }
-    Ok(series.lines)
 }
 
 /// The `waveform` key (default sine), checked against the known names.
@@ -105,29 +160,62 @@ fn parse_waveform(
     frequency: f64,
 ) -> Result<Waveform, InputError> {
     Ok(match name {
+        "square" if table.has("rise") || table.has("fall") => parse_edges(table, frequency, false)?,
         "square" => Waveform::Square,
         "triangle" => Waveform::Triangle,
-        "sawtooth" => Waveform::Sawtooth,
-        "trapezoid" => parse_trapezoid(table, frequency)?,
+        "sawtooth" => Waveform::Sawtooth {
+            fall: match table.get("fall") {
+                Some(f) => {
+                    let fall = edge_fraction(&f, frequency)?;
+                    if fall >= 1.0 {
+                        return Err(f.error(format!(
+                            "the flyback must be shorter than the period 1/frequency ({})",
+                            format_si(1.0 / frequency, "s", 4)
+                        )));
+                    }
+                    fall
+                }
+                None => 0.0,
+            },
+        },
+        "trapezoid" => parse_edges(table, frequency, true)?,
         _ => unreachable!("waveform names checked by waveform_name"),
     })
 }
 
-/// `rise`, `fall` (default: rise) and `duty` (default 0.5), as fractions of the period.
-fn parse_trapezoid(table: &Table<'_, '_>, frequency: f64) -> Result<Waveform, InputError> {
-    let edge = |v: Value<'_, '_>| -> Result<f64, InputError> {
-        let t = v.quantity(Dimension::Time)?;
-        if t < 0.0 {
-            return Err(v.error(format!("an edge time cannot be negative, got {}", v.raw())));
-        }
-        Ok(t * frequency)
+/// An edge time as a fraction of the period at `frequency` Hz.
+fn edge_fraction(v: &Value<'_, '_>, frequency: f64) -> Result<f64, InputError> {
+    let t = v.quantity(Dimension::Time)?;
+    if t < 0.0 {
+        return Err(v.error(format!("an edge time cannot be negative, got {}", v.raw())));
+    }
+    Ok(t * frequency)
+}
+
+/// `rise` (required for a trapezoid; for a square either edge key may be given),
+/// `fall` (default: rise) and `duty` (default 0.5; a square's duty is 0.5), as
+/// fractions of the period: a trapezoid, or a square wave with edges that take time.
+fn parse_edges(
+    table: &Table<'_, '_>,
+    frequency: f64,
+    trapezoid: bool,
+) -> Result<Waveform, InputError> {
+    let rise_v = if trapezoid || !table.has("fall") {
+        Some(table.require(
+            "rise",
+            "the full duration of the rising edge, e.g. \"50 ns\"",
+        )?)
+    } else {
+        table.get("rise")
     };
-    let rise = edge(table.require(
-        "rise",
-        "the full duration of the rising edge, e.g. \"50 ns\"",
-    )?)?;
-    let fall = match table.get("fall") {
-        Some(f) => edge(f)?,
+    let fall_v = table.get("fall");
+    let rise = match (&rise_v, &fall_v) {
+        (Some(r), _) => edge_fraction(r, frequency)?,
+        (None, Some(f)) => edge_fraction(f, frequency)?,
+        (None, None) => unreachable!("one edge key is present"),
+    };
+    let fall = match fall_v {
+        Some(f) => edge_fraction(&f, frequency)?,
         None => rise,
     };
     let edges_key = if table.has("fall") { "fall" } else { "rise" };
@@ -141,7 +229,16 @@ fn parse_trapezoid(table: &Table<'_, '_>, frequency: f64) -> Result<Waveform, In
             ),
         ));
     }
-    let duty = parse_duty(table, rise + fall, edges_key)?;
+    let duty = if trapezoid {
+        parse_duty(table, rise + fall, edges_key)?
+    } else {
+        if let Some(d) = table.get("duty") {
+            return Err(d.error(
+                "a square wave's duty is 0.5; use waveform = \"trapezoid\" for another duty",
+            ));
+        }
+        0.5
+    };
     Ok(Waveform::Trapezoid { rise, fall, duty })
 }
 
@@ -188,26 +285,6 @@ fn line_count(table: &Table<'_, '_>, tolerance: f64) -> Result<LineCount, InputE
         )));
     }
     Ok(LineCount::Exactly(n))
-}
-
-/// The note for a series cut at the default line cap.
-fn cap_warning(ctx: &CurrentContext<'_>, name: &str, lines: &[Line]) -> String {
-    let top = lines.last().map_or(0.0, |l| l.frequency);
-    let advice = if matches!(name, "square" | "sawtooth") {
-        "an ideal edge's EMF lines do not fall off (EMF grows as n times the nth line's \
-         current); set `harmonics` to choose how many lines to keep, or use waveform = \
-         \"trapezoid\" with a `rise` time"
-    } else {
-        "set `harmonics` to choose how many lines to keep"
-    };
-    format!(
-        "source \"{}\": the {name} current still has lines above the tolerance ({:e} of the \
-         largest) beyond its first {} lines, so the series is cut there (at {}); {advice}",
-        ctx.source_id,
-        ctx.tolerance,
-        waveform::MAX_DEFAULT_LINES,
-        format_si(top, "Hz", 4)
-    )
 }
 
 /// Exactly one of `keys` as an [`Amplitude`], or `None` when none is given.
@@ -293,6 +370,7 @@ mod tests {
             &ctx,
             &mut Vec::new(),
         )
+        .map(|c| c.lines)
     }
 
     #[test]

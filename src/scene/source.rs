@@ -83,9 +83,14 @@ pub(crate) fn parse(
     let mut conductors = parse_conductors(t, kind, &place, warnings)?;
     apply_turns(t, kind, &mut conductors)?;
     let calibrate = t.get("calibrate");
-    let mut lines = parse_lines(t, &id, ctx, calibrate.is_none(), warnings)?;
+    let current = parse_lines(t, &id, ctx, calibrate.is_none(), warnings)?;
+    let (mut lines, mut tail) = (current.lines, current.tail);
     let calibration = match calibrate {
-        Some(c) => Some(calibrate_lines(&c, &conductors, &mut lines)?),
+        Some(c) => {
+            let (at, field, k) = calibrate_lines(&c, &conductors, &mut lines)?;
+            tail = tail.scaled(k, 1.0);
+            Some((at, field))
+        }
         None => None,
     };
     t.finish(GEOMETRY_KEYS, &format!("a source of kind \"{kind}\""))?;
@@ -97,6 +102,7 @@ pub(crate) fn parse(
         frame,
         conductors,
         lines,
+        tail,
         calibration,
     })
 }
@@ -207,7 +213,7 @@ fn parse_lines(
     ctx: &Context,
     amplitude_required: bool,
     warnings: &mut Vec<String>,
-) -> Result<Vec<crate::spectrum::Line>, InputError> {
+) -> Result<super::current::Current, InputError> {
     match t.get("current") {
         Some(c) => {
             let cctx = CurrentContext {
@@ -246,12 +252,13 @@ fn check_finite(t: &Table<'_, '_>, lines: &[crate::spectrum::Line]) -> Result<()
 }
 
 /// `calibrate = { at, field }`: scales `lines` so the rms of |B| at `at` equals `field`
-/// (rms over all lines: √(Σ|B_k|²/2)). Returns the point (m) and field (T).
+/// (rms over all lines: √(Σ|B_k|²/2)). Returns the point (m), the field (T) and the
+/// factor the currents were multiplied by.
 fn calibrate_lines(
     v: &Value<'_, '_>,
     conductors: &Conductors,
     lines: &mut [crate::spectrum::Line],
-) -> Result<(Vec3, f64), InputError> {
+) -> Result<(Vec3, f64, f64), InputError> {
     let t = v.table()?;
     let at_v = t.require("at", "the point [x, y, z] where the field is known")?;
     let at = at_v.vector(Dimension::Length)?;
@@ -275,5 +282,5 @@ fn calibrate_lines(
     for l in lines.iter_mut() {
         l.current *= k;
     }
-    Ok((at, field))
+    Ok((at, field, k))
 }

@@ -1,6 +1,7 @@
 //! Human-readable reports for the terminal.
 
 use crate::Scene;
+use crate::coupling::Total;
 use crate::field::Vec3;
 use crate::run::couple::VictimReport;
 use crate::run::probe::ProbePoint;
@@ -58,7 +59,7 @@ pub fn couple(scene: &Scene, reports: &[VictimReport]) -> String {
             let _ = writeln!(out, "{}", if shielded { "  shielding" } else { "" });
             for l in &s.lines {
                 let phase = if l.emf.norm() > 0.0 {
-                    format!("{:>7.2}°", l.emf.arg().to_degrees())
+                    format!("{:>7}°", fixed(l.emf.arg().to_degrees(), 2))
                 } else {
                     format!("{:>8}", "-")
                 };
@@ -76,28 +77,17 @@ pub fn couple(scene: &Scene, reports: &[VictimReport]) -> String {
                 let _ = writeln!(out);
             }
         }
-        let _ = write!(out, "  total EMF {} rms", si(r.total_rms, "V"));
-        match (r.limit, r.margin_db(), r.pass()) {
-            (Some(l), Some(m), Some(p)) => {
-                let verdict = if p { "within limit" } else { "OVER LIMIT" };
-                let _ = writeln!(
-                    out,
-                    "; limit {} rms; margin {:+.1} dB: {verdict}",
-                    si(l, "V"),
-                    m
-                );
-            }
-            _ => {
-                let _ = writeln!(out, "; no limit set");
-            }
-        }
-        if let (Some(vl), Some(r_load)) = (r.load_rms, v.load) {
+        total_lines(&mut out, r);
+        if let (Some(load), Some(r_load)) = (&r.load, v.load) {
+            let value = match load.rms() {
+                Some(vl) => format!("{} rms", si(vl, "V")),
+                None => "no converging total".to_string(),
+            };
             let _ = writeln!(
                 out,
-                "  across the {} load (through the loop's {} self-inductance): {} rms",
+                "  across the {} load (through the loop's {} self-inductance): {value}",
                 si(r_load, "Ω"),
                 si(v.self_inductance, "H"),
-                si(vl, "V")
             );
         }
     }
@@ -105,6 +95,80 @@ pub fn couple(scene: &Scene, reports: &[VictimReport]) -> String {
         let _ = writeln!(out, "\nthe scene has no [[victim]]: nothing to couple");
     }
     out
+}
+
+/// The lines above those listed, the total and the verdict of one victim.
+fn total_lines(out: &mut String, r: &VictimReport) {
+    let (rms, listed, omitted, exact) = match &r.total {
+        Total::Converged {
+            rms,
+            listed,
+            omitted,
+            omitted_exact,
+        } => (*rms, *listed, *omitted, *omitted_exact),
+        Total::Diverges(source) => {
+            let _ = writeln!(
+                out,
+                "  total EMF: does not converge: source {source}'s waveform has an ideal edge \
+                 (see the warning)"
+            );
+            let _ = match r.limit {
+                Some(l) => writeln!(out, "  limit {} rms: no verdict", si(l, "V")),
+                None => writeln!(out, "  no limit set"),
+            };
+            return;
+        }
+    };
+    if omitted > 0.0 && 20.0 * (rms / listed).log10() >= 0.005 {
+        let how = if exact {
+            "closed form"
+        } else {
+            "estimate, see the docs"
+        };
+        let _ = writeln!(
+            out,
+            "  lines above those listed: {} rms ({how}); they add {} dB to the listed {} rms",
+            si(omitted, "V"),
+            fixed(20.0 * (rms / listed).log10(), 2),
+            si(listed, "V"),
+        );
+    }
+    let _ = write!(out, "  total EMF {} rms", si(rms, "V"));
+    match (r.limit, r.margin_db(), r.pass()) {
+        (Some(l), Some(m), Some(p)) => {
+            let verdict = if p { "within limit" } else { "OVER LIMIT" };
+            let margin = if m.is_finite() {
+                format!("margin {} dB", signed(m, 1))
+            } else {
+                "no EMF".to_string()
+            };
+            let _ = writeln!(out, "; limit {} rms; {margin}: {verdict}", si(l, "V"));
+        }
+        _ => {
+            let _ = writeln!(out, "; no limit set");
+        }
+    }
+}
+
+/// `x` with `decimals` after the point, never "-0.00": a value that rounds to zero
+/// prints as zero.
+pub(crate) fn fixed(x: f64, decimals: usize) -> String {
+    let text = format!("{x:.decimals$}");
+    if text.starts_with('-') && text[1..].chars().all(|c| c == '0' || c == '.') {
+        text[1..].to_string()
+    } else {
+        text
+    }
+}
+
+/// As [`fixed`] with an explicit sign ("+0.0" for a value that rounds to zero).
+pub(crate) fn signed(x: f64, decimals: usize) -> String {
+    let text = fixed(x, decimals);
+    if text.starts_with('-') {
+        text
+    } else {
+        format!("+{text}")
+    }
 }
 
 /// `probe`: one block per point.

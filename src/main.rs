@@ -180,6 +180,9 @@ fn progress_bar() -> Option<indicatif::ProgressBar> {
     )
     .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar());
     bar.set_style(style);
+    // Keep the spinner and the elapsed time moving through long single steps (a
+    // shielded solve, the orientation search after a sweep's steps).
+    bar.enable_steady_tick(std::time::Duration::from_millis(250));
     Some(bar)
 }
 
@@ -213,7 +216,9 @@ fn dispatch(command: &Command) -> Result<app::Outcome, strayflux::Error> {
             json,
             strict,
             plot,
-        } => app::couple(scene, *json, *strict, plot.as_deref()),
+        } => {
+            with_progress(|progress| app::couple(scene, *json, *strict, plot.as_deref(), progress))
+        }
         Command::Map {
             scene,
             only,

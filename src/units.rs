@@ -326,24 +326,35 @@ pub fn mm_point(p: &nalgebra::Vector3<f64>) -> String {
     format!("({}, {}, {})", mm(p.x), mm(p.y), mm(p.z))
 }
 
-/// Formats an area in m² with the prefix on the metre, e.g. `"706.9 mm²"`.
+/// Formats an area in m² with the prefix on the metre, `digits` significant: mm² from
+/// 1 mm² up to 10 000 mm² (every loop a circuit board holds, so two loops always
+/// compare in one unit), m² from 0.01 m², µm² below 1 mm²; e.g. `"706.9 mm²"`. The
+/// unit and the decimals are chosen after rounding, so 99.999 999 mm² prints as
+/// `100.0 mm²`, never `100.00 mm²`.
 pub fn format_area(value: f64, digits: usize) -> String {
-    let (factor, unit) = if value.abs() >= 1.0 {
+    let digits = digits.max(1);
+    let round = |x: f64| -> f64 {
+        if x == 0.0 {
+            return 0.0;
+        }
+        let p = (digits as i32 - 1) - x.abs().log10().floor() as i32;
+        let k = 10f64.powi(p);
+        (x * k).round() / k
+    };
+    let a = round(value).abs();
+    let (factor, unit) = if a >= 1e-2 {
         (1.0, "m²")
-    } else if value.abs() >= 1e-4 {
-        (1e-4, "cm²")
-    } else if value.abs() >= 1e-6 || value == 0.0 {
+    } else if a >= 1e-6 || a == 0.0 {
         (1e-6, "mm²")
     } else {
         (1e-12, "µm²")
     };
-    let scaled = value / factor;
-    let int_digits = if scaled == 0.0 {
-        1
+    let scaled = round(value / factor);
+    let decimals = if scaled == 0.0 {
+        digits - 1
     } else {
-        (scaled.abs().log10().floor() as i64 + 1).max(1) as usize
+        (digits as i64 - 1 - scaled.abs().log10().floor() as i64).max(0) as usize
     };
-    let decimals = digits.saturating_sub(int_digits);
     format!("{scaled:.decimals$} {unit}")
 }
 
@@ -409,7 +420,12 @@ mod tests {
         assert_eq!(format_si(2.2e-6, "V", 3), "2.20 µV");
         assert_eq!(format_si(1500.0, "Hz", 3), "1.50 kHz");
         assert_eq!(format_si(-0.0123, "H", 3), "-12.3 mH");
-        assert_eq!(format_area(7.069e-4, 4), "7.069 cm²");
+        assert_eq!(format_area(7.069e-4, 4), "706.9 mm²");
         assert_eq!(format_area(45e-6, 3), "45.0 mm²");
+        // One unit for the same area, whatever rounding noise it carries.
+        assert_eq!(format_area(1e-4, 4), "100.0 mm²");
+        assert_eq!(format_area(0.999_999_999e-4, 4), "100.0 mm²");
+        assert_eq!(format_area(9.999_9e-7, 4), "1.000 mm²");
+        assert_eq!(format_area(0.02, 4), "0.02000 m²");
     }
 }

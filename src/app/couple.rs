@@ -12,22 +12,31 @@ use crate::units::format_si;
 use std::path::Path;
 
 /// `couple SCENE`: M, EMF per line, totals and margins for every victim; with `plot_dir`
-/// also each victim's EMF spectrum as `<dir>/<victim>-spectrum.svg`.
+/// also each victim's EMF spectrum as `<dir>/<victim>-spectrum.svg`. `progress` is
+/// called with (victims done, victims) as each victim is coupled.
 pub fn couple(
     path: &Path,
     as_json: bool,
     strict: bool,
     plot_dir: Option<&Path>,
+    progress: &(dyn Fn(usize, usize) + Sync),
 ) -> Result<Outcome, Error> {
     let scene = Scene::load(path)?;
     if let Some(dir) = plot_dir {
         files::ensure_dir(dir)?;
     }
     let solver = Solver::for_scene(&scene);
+    let count = scene.victims.len();
+    progress(0, count);
     let reports: Vec<VictimReport> = scene
         .victims
         .iter()
-        .map(|v| couple_victim(&scene, &solver, v))
+        .enumerate()
+        .map(|(i, v)| {
+            let r = couple_victim(&scene, &solver, v);
+            progress(i + 1, count);
+            r
+        })
         .collect::<Result<_, SolveError>>()?;
     let mut warnings = scene.warnings.clone();
     for r in &reports {

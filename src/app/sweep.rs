@@ -26,7 +26,12 @@ pub fn sweep(
     let solver = Solver::new(&scene, SolverOptions::for_scene(&scene).exact_if(exact));
     let chosen = choose_sweeps(&scene, path, only)?;
     files::ensure_dir(out_dir)?;
-    let total_steps: usize = chosen.iter().map(|s| s.steps * (1 + s.compare.len())).sum();
+    // Every step of every alternative, plus one for each sweep's closing work (the
+    // safe-distance bisection and the orientation search at the placed position).
+    let total_steps: usize = chosen
+        .iter()
+        .map(|s| s.steps * (1 + s.compare.len()) + 1)
+        .sum();
     let done = std::sync::atomic::AtomicUsize::new(0);
     let tick = || {
         let n = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
@@ -34,7 +39,11 @@ pub fn sweep(
     };
     let results: Vec<SweepResult> = chosen
         .iter()
-        .map(|s| crate::run::sweep::run(&scene, &solver, s, &tick))
+        .map(|s| {
+            let r = crate::run::sweep::run(&scene, &solver, s, &tick);
+            tick();
+            r
+        })
         .collect::<Result<_, SolveError>>()?;
     let mut warnings = scene.warnings.clone();
     let outputs = sweep_files(&scene, &results, out_dir, &mut warnings)?;

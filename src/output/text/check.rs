@@ -54,17 +54,29 @@ fn check_source(out: &mut String, s: &crate::model::Source) {
         let _ = writeln!(out, "  point dipole at {}", fmt_point(&s.frame.origin));
     }
     let m = c.dipole_moment_per_amp();
-    let _ = writeln!(
-        out,
-        "  dipole moment {} per A ({:.3e} A·m²/A along {})",
-        si(m.norm(), "A·m²"),
-        m.norm(),
-        fmt_dir(&Vec3::new(
-            safe_unit(m.x, m.norm()),
-            safe_unit(m.y, m.norm()),
-            safe_unit(m.z, m.norm())
-        ))
-    );
+    // A winding's moment that cancels (a go-and-return pair, say) comes out as rounding
+    // noise: compare it with the largest moment its wire could make, a circle of that
+    // circumference, L²/(4π) per ampere.
+    let scale = c.wire_length().powi(2) / (4.0 * std::f64::consts::PI);
+    if c.dipoles.is_empty() && m.norm() <= 1e-9 * scale {
+        let _ = writeln!(
+            out,
+            "  dipole moment: none (zero to rounding; far away its field falls faster than \
+             a dipole's)"
+        );
+    } else {
+        let _ = writeln!(
+            out,
+            "  dipole moment {} per A ({:.3e} A·m²/A along {})",
+            si(m.norm(), "A·m²"),
+            m.norm(),
+            fmt_dir(&Vec3::new(
+                safe_unit(m.x, m.norm()),
+                safe_unit(m.y, m.norm()),
+                safe_unit(m.z, m.norm())
+            ))
+        );
+    }
     if let Some((at, field)) = s.calibration {
         let i_rms = (s.lines.iter().map(|l| l.current.norm_sqr()).sum::<f64>() / 2.0).sqrt();
         let _ = writeln!(
@@ -78,11 +90,26 @@ fn check_source(out: &mut String, s: &crate::model::Source) {
     for l in &s.lines {
         let _ = writeln!(
             out,
-            "  line {:>12}  {:>12} peak  phase {:7.2}°",
+            "  line {:>12}  {:>12} peak  phase {:>7}°",
             si(l.frequency, "Hz"),
             si(l.current.norm(), "A"),
-            l.current.arg().to_degrees()
+            super::fixed(l.current.arg().to_degrees(), 2)
         );
+    }
+    match &s.tail {
+        crate::spectrum::Tail::Slope(_) => {
+            let _ = writeln!(
+                out,
+                "  lines above these: counted in every EMF total, summed in closed form"
+            );
+        }
+        crate::spectrum::Tail::IdealEdge(_) => {
+            let _ = writeln!(
+                out,
+                "  ideal edge: the EMF lines do not fall off, so no EMF total (see the warning)"
+            );
+        }
+        crate::spectrum::Tail::None => {}
     }
 }
 

@@ -267,3 +267,20 @@ pub fn materials(list: &[crate::model::material::Material], freqs: &[f64]) -> St
     }
     out
 }
+
+#[cfg(test)]
+mod tests {
+    use super::{fixed, signed};
+
+    #[test]
+    fn a_value_that_rounds_to_zero_has_no_sign() {
+        assert_eq!(fixed(-1e-15, 2), "0.00");
+        assert_eq!(fixed(-0.0, 2), "0.00");
+        assert_eq!(fixed(-0.004, 2), "0.00");
+        assert_eq!(fixed(-0.005_1, 2), "-0.01");
+        assert_eq!(fixed(-90.0, 2), "-90.00");
+        assert_eq!(signed(-0.04, 1), "+0.0");
+        assert_eq!(signed(-20.44, 1), "-20.4");
+        assert_eq!(signed(3.0, 1), "+3.0");
+    }
+}

@@ -17,7 +17,7 @@ pub fn sweeps(
         let v = &scene.victims[r.spec.victim];
         let fmt_value = |x: f64| match r.spec.vary {
             Vary::Distance(_) => si(x, "m"),
-            Vary::Angle(_) => format!("{:.2}°", x.to_degrees()),
+            Vary::Angle(_) => format!("{}°", super::fixed(x.to_degrees(), 2)),
             Vary::Frequency => si(x, "Hz"),
         };
         let _ = writeln!(

@@ -90,6 +90,10 @@ pub struct Victim {
     pub self_inductance: f64,
     /// Load resistance across the victim's terminals, ohm (`load = { resistance }`).
     pub load: Option<f64>,
+    /// Set while an orientation search turns the victim about its centre: the radius
+    /// (m) of the sphere every orientation stays within. Shield solves then plan for
+    /// that whole sphere, so that every trial orientation shares one source solve.
+    pub turning_reach: Option<f64>,
 }
 
 impl Victim {
@@ -110,6 +114,20 @@ impl Victim {
         Victim {
             edges,
             frame,
+            ..self.clone()
+        }
+    }
+
+    /// The victim marked for an orientation search: [`Victim::turning_reach`] set to
+    /// the largest distance (m) of its path from its centre.
+    pub fn turning(&self) -> Victim {
+        let centre = self.frame.origin;
+        let reach = super::shield::victim_points(&self.edges)
+            .iter()
+            .map(|p| (p - centre).norm())
+            .fold(0.0, f64::max);
+        Victim {
+            turning_reach: Some(reach),
             ..self.clone()
         }
     }

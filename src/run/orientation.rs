@@ -72,6 +72,9 @@ pub fn search<F: Fn(&Victim) -> f64 + Sync>(
     worst: bool,
     total: F,
 ) -> Orientation {
+    // Every trial turns the victim about its centre: mark it so that shield solves plan
+    // once for all orientations.
+    let victim = &victim.turning();
     let eig = SymmetricEigen::new(*q);
     let mut order: Vec<usize> = (0..3).collect();
     order.sort_by(|&a, &b| eig.eigenvalues[a].total_cmp(&eig.eigenvalues[b]));

@@ -76,6 +76,7 @@ pub(crate) fn parse(t: &Table<'_, '_>, ctx: &Context) -> Result<Victim, InputErr
         area,
         self_inductance: one_turn_l * turns * turns,
         load,
+        turning_reach: None,
     })
 }
 

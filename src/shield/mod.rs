@@ -75,6 +75,8 @@ pub fn pair_effects(
         let v_side = b
             .side_of(&vpts, &format!("victim \"{}\"", victim.id))
             .map_err(SolveError::Shield)?;
+        // While an orientation search turns the victim, plans are rounded up to a
+        // coarse grid so that nearby orientations share the source's cached spectrum.
         let scattered = flux_model(
             b,
             &source.conductors,
@@ -83,6 +85,7 @@ pub fn pair_effects(
             &vpts,
             v_side,
             tolerance,
+            victim.turning_reach.is_some(),
         )
         .map_err(|why| SolveError::Shield(format!("victim \"{}\" {why}", victim.id)))?;
         effects.push(Arc::new(scattered));
@@ -127,14 +130,88 @@ fn lateral_disc(frame: &spectral::SideFrame, points: &[Vec3]) -> (f64, f64, f64)
     (cx, cy, r)
 }
 
+/// How many source spectra [`cached_spectrum`] keeps.
+const SPECTRUM_CACHE: usize = 8;
+
+/// Recent source spectra with their keys (see [`spectrum_key`]), newest last.
+type SpectrumCache = Vec<(u64, Arc<SourceSpectrum>)>;
+
+static SPECTRA: std::sync::Mutex<SpectrumCache> = std::sync::Mutex::new(Vec::new());
+
+/// The source spectrum of `conductors` seen from `frame` on `plan`, from a small cache
+/// of recent ones: an orientation search solves the same source on the same plan for
+/// every orientation it tries. The key covers every input of the spectrum, so a hit
+/// returns exactly what a fresh computation would.
+fn cached_spectrum(
+    conductors: &Conductors,
+    frame: &spectral::SideFrame,
+    plan: &Plan,
+) -> Arc<SourceSpectrum> {
+    let key = spectrum_key(conductors, frame, plan);
+    let lock = || SPECTRA.lock().unwrap_or_else(|e| e.into_inner());
+    if let Some((_, s)) = lock().iter().find(|(k, _)| *k == key) {
+        return Arc::clone(s);
+    }
+    let fresh = Arc::new(SourceSpectrum::new(conductors, frame, plan.clone()));
+    let mut cache = lock();
+    if !cache.iter().any(|(k, _)| *k == key) {
+        if cache.len() >= SPECTRUM_CACHE {
+            cache.remove(0);
+        }
+        cache.push((key, Arc::clone(&fresh)));
+    }
+    fresh
+}
+
+/// A 64-bit hash of every input of a source spectrum: the conductors' vertices,
+/// dipoles, the side frame and the plan's nodes (as exact bit patterns).
+fn spectrum_key(conductors: &Conductors, frame: &spectral::SideFrame, plan: &Plan) -> u64 {
+    use std::hash::{Hash, Hasher};
+    let mut h = std::collections::hash_map::DefaultHasher::new();
+    let mut put = |v: &Vec3| {
+        for x in v.iter() {
+            x.to_bits().hash(&mut h);
+        }
+    };
+    for w in &conductors.wires {
+        for v in &w.vertices {
+            put(v);
+        }
+        put(&Vec3::new(w.wire_radius, w.weight, w.vertices.len() as f64));
+    }
+    for d in &conductors.dipoles {
+        put(&d.position);
+        put(&d.moment_per_amp);
+        put(&Vec3::repeat(d.radius));
+    }
+    for v in [
+        frame.local(&Vec3::zeros()),
+        frame.local_dir(&Vec3::x()),
+        frame.local_dir(&Vec3::y()),
+        frame.local_dir(&Vec3::z()),
+    ] {
+        put(&v);
+    }
+    plan.fingerprint(&mut h);
+    h.finish()
+}
+
+/// Ratio of the grid that [`plan_for`] rounds a plan's height and span to when asked to
+/// share plans (10 %: a shared plan has at most about a tenth more nodes than its own).
+const SHARED_PLAN_STEP: f64 = 1.1;
+
 /// Plans the spectral sum for a source on `source_side` and targets `targets` (scene
-/// points, each with its side), to `tolerance`.
+/// points, each with its side), to `tolerance`. With `shared`, the height is rounded
+/// down and the span up to a grid of ratio [`SHARED_PLAN_STEP`]: the plan is then at
+/// least as fine as the targets need (a nearer, wider target needs more nodes) and
+/// is the same for targets that differ a little, so their spectra can be shared.
 fn plan_for(
     barrier: &Barrier,
     conductors: &Conductors,
     source_side: Side,
     targets: &[(Vec3, Side)],
     tolerance: f64,
+    shared: bool,
 ) -> Result<Plan, String> {
     let (frame, _) = barrier.seen_from(source_side);
     let src: Vec<Vec3> = conductors
@@ -157,7 +234,13 @@ fn plan_for(
     let (sx, sy, sr) = lateral_disc(&frame, &src);
     let pts: Vec<Vec3> = targets.iter().map(|t| t.0).collect();
     let (tx, ty, tr) = lateral_disc(&frame, &pts);
-    let span = ((sx - tx).powi(2) + (sy - ty).powi(2)).sqrt() + sr + tr;
+    let mut span = ((sx - tx).powi(2) + (sy - ty).powi(2)).sqrt() + sr + tr;
+    let mut height = height;
+    if shared && height > 0.0 && span > 0.0 {
+        let ln = SHARED_PLAN_STEP.ln();
+        height = SHARED_PLAN_STEP.powf((height.ln() / ln).floor());
+        span = SHARED_PLAN_STEP.powf((span.ln() / ln).ceil());
+    }
     // 0.98: sampled arcs may dip slightly nearer than their samples.
     let plan = Plan::new(0.98 * (depth + height), span, tolerance).map_err(|e| match e {
         PlanError::Touching => "touches a shield face".to_string(),
@@ -176,6 +259,9 @@ fn plan_for(
 
 /// The scattered flux model of `conductors` (on `source_side`) through the closed path
 /// `edges` (on `victim_side`, sampled as `victim_points`), or why it cannot be built.
+/// `shared` rounds the plan up so that nearby placements share it (an orientation
+/// search; see [`plan_for`]).
+#[allow(clippy::too_many_arguments)]
 pub fn flux_model(
     barrier: &Barrier,
     conductors: &Conductors,
@@ -184,12 +270,20 @@ pub fn flux_model(
     victim_points: &[Vec3],
     victim_side: Side,
     tolerance: f64,
+    shared: bool,
 ) -> Result<Scattered, String> {
     let targets: Vec<(Vec3, Side)> = victim_points.iter().map(|p| (*p, victim_side)).collect();
-    let plan = plan_for(barrier, conductors, source_side, &targets, tolerance)?;
+    let plan = plan_for(
+        barrier,
+        conductors,
+        source_side,
+        &targets,
+        tolerance,
+        shared,
+    )?;
     let (frame, layers) = barrier.seen_from(source_side);
     let path = Barrier::path(source_side, victim_side);
-    let spectrum = SourceSpectrum::new(conductors, &frame, plan.clone());
+    let spectrum = cached_spectrum(conductors, &frame, &plan);
     let terms = spectrum.flux_terms(edges, &frame, path);
     Ok(Scattered {
         plan,
@@ -216,7 +310,7 @@ pub fn scattered_field(
     if points.is_empty() {
         return Ok(Vec::new());
     }
-    let plan = plan_for(barrier, conductors, source_side, points, tolerance)?;
+    let plan = plan_for(barrier, conductors, source_side, points, tolerance, false)?;
     let (frame, layers) = barrier.seen_from(source_side);
     let spectrum = SourceSpectrum::new(conductors, &frame, plan.clone());
     let factors: Vec<[Vec<Complex64>; 2]> = frequencies

@@ -366,6 +366,17 @@ impl Plan {
         Ok(Plan { radial })
     }
 
+    /// Feeds every node of the plan (wavenumber, weight, angle count, as exact bits)
+    /// into `h`: equal fingerprints mean equal plans.
+    pub fn fingerprint(&self, h: &mut impl std::hash::Hasher) {
+        use std::hash::Hash;
+        for r in &self.radial {
+            r.k.to_bits().hash(h);
+            r.weight.to_bits().hash(h);
+            r.n_half.hash(h);
+        }
+    }
+
     /// Number of radial nodes.
     pub fn radial_count(&self) -> usize {
         self.radial.len()

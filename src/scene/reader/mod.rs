@@ -206,6 +206,23 @@ impl<'a, 'i> Table<'a, 'i> {
         self.table.contains_key(name)
     }
 
+    /// Refuses the first of `keys` present in this table: each names a feature a user
+    /// may expect but the program does not model, and `reason` says so and what to do
+    /// instead. The error is at the key, not an "unknown key" one.
+    pub fn refuse_unmodelled(&self, keys: &[&str], reason: &str) -> Result<(), InputError> {
+        match self
+            .table
+            .iter()
+            .find(|(k, _)| keys.contains(&k.get_ref().as_ref()))
+        {
+            Some((k, _)) => {
+                let name: &str = k.get_ref().as_ref();
+                Err(self.doc.error(&k.span(), &self.path_of(name), reason))
+            }
+            None => Ok(()),
+        }
+    }
+
     /// Fails on the first key that was never read. `also` lists keys valid elsewhere in
     /// this kind of table (other kinds' keys) to explain why they do not apply here,
     /// with `context` saying what the table is (`kind "loop"`).

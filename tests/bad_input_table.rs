@@ -653,6 +653,39 @@ current = { peak = "1 A", frequency = "50 Hz" }
             "sweep[1].compare[2]",
             "did you mean \"plate\"",
         ),
+        // A magnetic core is a known feature the tool does not model: the message says so
+        // and points to `calibrate` and the dipole kind, not "unknown key".
+        at(
+            "core on a source",
+            format!("{g}core = \"ferrite\"\n"),
+            (6, Some(1)),
+            "source[1].core",
+            "magnetic cores are not modelled",
+        ),
+        at(
+            "core permeability on a source points to calibrate",
+            format!("{g}mu_r = 2000\n"),
+            (6, Some(1)),
+            "source[1].mu_r",
+            "calibrate",
+        ),
+        at(
+            "core gap on a source points to the dipole kind",
+            g.replace("kind = \"loop\"", "air_gap = \"0.5 mm\"\nkind = \"loop\""),
+            (3, Some(1)),
+            "source[1].air_gap",
+            "kind = \"dipole\"",
+        ),
+        at(
+            "core material before a missing key still names the core",
+            format!(
+                "{}permeability = 3000\n",
+                g.replace("radius = \"8 mm\"\n", "")
+            ),
+            (5, Some(1)),
+            "source[1].permeability",
+            "not modelled",
+        ),
     ]
 }
 

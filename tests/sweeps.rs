@@ -715,9 +715,10 @@ fn polygon_victim_with_many_sides_approaches_the_rosa_grover_circle() {
     //   a wire of length 2s in two gives a mutual 2M = (μ0/2π)(2s ln 2 − g), while
     //   touching filaments give (μ0/2π)·2s ln 2: each corner over-counts up to
     //   (μ0/2π)·g, and the polygon exceeds the circle by up to g / (s (ln(8R/a) − 7/4)).
-    // That is why the sides must be much longer than the wire radius: with the default
-    // 0.1 mm wire (s = 1.57 mm, s/a ≈ 16) the second is 0.8 %; with a = 2 µm
-    // (s/a ≈ 800) it is 1e-4.
+    // With the default 0.1 mm wire (s = 1.57 mm, s/a ≈ 16) that second bound is 0.8 %;
+    // with a = 2 µm (s/a ≈ 800) it is 1e-4. The code now couples adjacent sides through
+    // the wire's GMD, not as touching filaments, so it stays near the first bound
+    // (tests/victim_paths.rs holds the 0.1 mm case to it).
     let dir = scratch("polygon-l");
     let (r, a, n) = (0.050, 2e-6, 200usize);
     let vertices: Vec<String> = (0..n)

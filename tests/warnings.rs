@@ -96,3 +96,43 @@ fn a_long_thin_enclosure_is_flagged() {
     let cube = check_stderr("cube.toml", &boxed("[\"14 mm\", \"14 mm\", \"14 mm\"]"));
     assert!(!cube.contains("times longer"), "{cube}");
 }
+
+/// A bare number is in SI base units (docs/scene-reference.md): `radius = 8` is 8 m, a
+/// size no loop in this tool's range has, so it warns at its place with its key; the
+/// same radius with a unit, or in metres, does not. The per-key limits are our own
+/// choice (common practice for what such parts measure): coil sizes 1 m, cable
+/// lengths 20 m, wire radii 5 mm.
+#[test]
+fn an_implausible_bare_number_warns_at_its_key() {
+    let loop_scene = |radius: &str| {
+        format!(
+            "[[source]]\nid = \"coil\"\nkind = \"loop\"\nradius = {radius}\n\
+             current = {{ frequency = \"1 kHz\", peak = \"1 A\" }}\n"
+        )
+    };
+    let bare = check_stderr("bare-radius.toml", &loop_scene("8"));
+    let dir = std::env::temp_dir().join(format!("strayflux-warn-{}", std::process::id()));
+    let want = format!(
+        "warning: {}:4:10: source[1].radius: 8 is read as 8 m (bare numbers are SI base \
+         units); write \"8 mm\" if that was meant",
+        dir.join("bare-radius.toml").display()
+    );
+    assert_eq!(bare.trim_end(), want);
+    assert_eq!(
+        check_stderr("unit-radius.toml", &loop_scene("\"8 mm\"")),
+        ""
+    );
+    assert_eq!(check_stderr("si-radius.toml", &loop_scene("0.008")), "");
+    // A 2 m cable pair is plausible; a bare `wire_radius = 0.01` (10 mm) is not.
+    let pair = "[[source]]\nid = \"cable\"\nkind = \"pair\"\nlength = 2\nseparation = 0.008\n\
+                current = { frequency = \"50 Hz\", peak = \"10 A\" }\n";
+    assert_eq!(check_stderr("pair.toml", pair), "");
+    let thick = check_stderr(
+        "thick.toml",
+        &format!("{}wire_radius = 0.01\n", loop_scene("\"0.8 m\"")),
+    );
+    assert!(
+        thick.contains(":6:15: source[1].wire_radius: 0.01 is read as 0.01 m"),
+        "{thick}"
+    );
+}

@@ -14,15 +14,18 @@ pub enum VictimKind {
     Polygon,
     /// A trace over its return plane (a thin rectangle).
     Trace,
+    /// A closed path read from a CSV file of points.
+    File,
 }
 
 impl VictimKind {
     /// Every kind, in the order the scene reference lists them.
-    pub const ALL: [VictimKind; 4] = [
+    pub const ALL: [VictimKind; 5] = [
         VictimKind::Loop,
         VictimKind::Rectangle,
         VictimKind::Polygon,
         VictimKind::Trace,
+        VictimKind::File,
     ];
 
     /// The keyword as written in scenes and output.
@@ -32,6 +35,7 @@ impl VictimKind {
             VictimKind::Rectangle => "rectangle",
             VictimKind::Polygon => "polygon",
             VictimKind::Trace => "trace",
+            VictimKind::File => "file",
         }
     }
 

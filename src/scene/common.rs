@@ -148,14 +148,34 @@ pub(crate) fn parse_points(v: &Value<'_, '_>, min: usize) -> Result<Vec<Vec3>, I
 }
 
 /// Corners of a closed polygon: at least three, a repeated first vertex at the end
-/// dropped, non-zero area, no side shorter than the wire diameter.
+/// dropped, non-zero area, and a wire that fits its bends (see [`closed_corners`]). An
+/// error names the vertex it is about when there is one.
 pub(crate) fn parse_polygon(v: &Value<'_, '_>, wire_radius: f64) -> Result<Vec<Vec3>, InputError> {
-    let mut pts = parse_points(v, 3)?;
+    let pts = parse_points(v, 3)?;
+    closed_corners(pts, wire_radius).map_err(|(at, why)| {
+        match at.and_then(|k| v.array().ok().and_then(|items| items.get(k).cloned())) {
+            Some(item) => item.error(why),
+            None => v.error(why),
+        }
+    })
+}
+
+/// The corners (m) of the closed path through `pts`: a repeated first point at the end
+/// is dropped (with more than three points), at least 3 distinct corners must remain,
+/// they must enclose an area, and the wire (radius `wire_radius`, m) must fit every
+/// bend ([`check_bends`]). An error carries the index of the point it is about, if any.
+pub(crate) fn closed_corners(
+    mut pts: Vec<Vec3>,
+    wire_radius: f64,
+) -> Result<Vec<Vec3>, (Option<usize>, String)> {
     if pts.len() > 3 && pts.first() == pts.last() {
         pts.pop();
     }
     if pts.len() < 3 || pts.first() == pts.last() {
-        return Err(v.error("a polygon needs at least 3 distinct corners"));
+        return Err((
+            None,
+            "a closed path needs at least 3 distinct corners".into(),
+        ));
     }
     let n = pts.len();
     let area: Vec3 = (0..n)
@@ -166,17 +186,54 @@ pub(crate) fn parse_polygon(v: &Value<'_, '_>, wire_radius: f64) -> Result<Vec<V
         .map(|i| (pts[(i + 1) % n] - pts[i]).norm())
         .fold(0.0, f64::max);
     if area.norm() <= 1e-12 * size * size {
-        return Err(v.error("the corners are colinear: the polygon encloses no area"));
+        return Err((
+            None,
+            "the corners are colinear: the polygon encloses no area".into(),
+        ));
     }
-    let shortest = (0..n)
-        .map(|i| (pts[(i + 1) % n] - pts[i]).norm())
-        .fold(f64::INFINITY, f64::min);
-    if shortest <= 2.0 * wire_radius {
-        return Err(v.error(format!(
-            "a side of {} is not longer than the wire diameter ({})",
-            mm(shortest),
-            mm(2.0 * wire_radius)
-        )));
-    }
+    check_bends(&pts, wire_radius)?;
     Ok(pts)
+}
+
+/// Checks that a round wire of radius `wire_radius` (m) can follow the closed path
+/// through `corners` (m). A corner whose two sides are both longer than the wire
+/// diameter always passes. A side not longer than the diameter passes where the path
+/// bends gently, as a finely sampled curve does: at each corner it touches, the arc
+/// tangent to both sides at their midpoints (radius min(side)/2 / tan(turn/2)) must be
+/// no tighter than the wire radius. For a 90° corner that is the same as "both sides
+/// longer than the diameter"; a regular N-gon of radius R bends with radius R cos(π/N).
+/// An error carries the index of the offending corner.
+pub(crate) fn check_bends(
+    corners: &[Vec3],
+    wire_radius: f64,
+) -> Result<(), (Option<usize>, String)> {
+    let n = corners.len();
+    for k in 0..n {
+        let before = corners[k] - corners[(k + n - 1) % n];
+        let after = corners[(k + 1) % n] - corners[k];
+        let shortest = before.norm().min(after.norm());
+        if shortest > 2.0 * wire_radius {
+            continue;
+        }
+        let cos_turn = (before.dot(&after) / (before.norm() * after.norm())).clamp(-1.0, 1.0);
+        let turn = cos_turn.acos();
+        let bend = shortest / 2.0 / (turn / 2.0).tan();
+        if bend < wire_radius {
+            return Err((
+                Some(k),
+                format!(
+                    "a side of {} (not longer than the wire diameter, {}) turns by {:.1}° \
+                     here, a bend of radius {} that the wire (radius {}) cannot follow; \
+                     sample the curve more finely, round the corner, or set a smaller \
+                     `wire_radius`",
+                    mm(shortest),
+                    mm(2.0 * wire_radius),
+                    turn.to_degrees(),
+                    mm(bend),
+                    mm(wire_radius)
+                ),
+            ));
+        }
+    }
+    Ok(())
 }

@@ -67,7 +67,11 @@ impl Scene {
             .parent()
             .map(Path::to_path_buf)
             .unwrap_or_default();
-        build(&root, base_dir)
+        let mut scene = build(&root, base_dir)?;
+        let mut warnings = doc.take_warnings();
+        warnings.append(&mut scene.warnings);
+        scene.warnings = warnings;
+        Ok(scene)
     }
 }
 

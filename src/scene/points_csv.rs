@@ -3,7 +3,7 @@
 
 use crate::error::InputError;
 use crate::field::Vec3;
-use crate::scene::reader::Doc;
+use crate::scene::reader::{Doc, Value};
 use crate::units::{Dimension, parse_quantity};
 use std::path::Path;
 
@@ -86,4 +86,54 @@ fn header_scale(cells: &[&str]) -> Result<f64, String> {
     }
     parse_quantity(&format!("1 {}", units[0]), Dimension::Length)
         .map_err(|e| format!("header unit: {}", e.0))
+}
+
+/// A conductor path read from the CSV file a scene's `path` key names: the points
+/// (local, m) with their one-based line numbers, and the file's name for messages.
+pub(crate) struct PathRows {
+    /// Each point (m, in the element's local frame) and its line in the file.
+    pub rows: Vec<(Vec3, usize)>,
+    /// The file as it appears in messages (the scene's folder joined with `path`).
+    pub name: String,
+}
+
+impl PathRows {
+    /// An error at line `line` of the CSV file, about its `row`.
+    pub fn error(&self, line: usize, reason: impl Into<String>) -> InputError {
+        InputError {
+            file: self.name.clone(),
+            line,
+            col: 1,
+            key: "row".into(),
+            reason: reason.into(),
+        }
+    }
+}
+
+/// Reads the CSV named by the `path` value `pv`, relative to `base_dir` (the scene's
+/// folder): at least 2 points and no two equal consecutive ones. A missing file is
+/// reported at `pv`; a bad row at the CSV's own line and column.
+pub(crate) fn read_path(pv: &Value<'_, '_>, base_dir: &Path) -> Result<PathRows, InputError> {
+    let rel = pv.string()?;
+    let path = base_dir.join(rel);
+    if !path.is_file() {
+        return Err(pv.error(format!("cannot read \"{}\": no such file", path.display())));
+    }
+    let rows = read_point_rows(&path)?;
+    let out = PathRows {
+        rows,
+        name: path.display().to_string(),
+    };
+    if out.rows.len() < 2 {
+        return Err(out.error(
+            out.rows.first().map_or(1, |r| r.1),
+            "a path needs at least 2 points",
+        ));
+    }
+    for w in out.rows.windows(2) {
+        if w[0].0 == w[1].0 {
+            return Err(out.error(w[1].1, "repeats the previous point: a zero-length segment"));
+        }
+    }
+    Ok(out)
 }

@@ -51,6 +51,25 @@ const GEOMETRY_KEYS: &[&str] = &[
     "calibrate",
 ];
 
+/// Keys a user may write for a magnetic core, which is not modelled.
+const CORE_KEYS: &[&str] = &[
+    "core",
+    "core_material",
+    "permeability",
+    "relative_permeability",
+    "mu_r",
+    "mur",
+    "gap",
+    "air_gap",
+    "ferrite",
+];
+
+/// Why [`CORE_KEYS`] are refused, and what to write instead.
+const NO_CORES: &str = "magnetic cores are not modelled: sources are air-cored \
+    conductors. Scale the source to a measured or datasheet stray field with \
+    calibrate = { at = [x, y, z], field = \"...\" }, or give its far field as \
+    kind = \"dipole\" with an effective_area";
+
 /// Builds a [`Source`] from one `[[source]]` table.
 pub(crate) fn parse(
     t: &Table<'_, '_>,
@@ -67,6 +86,7 @@ pub(crate) fn parse(
         "wire_radius",
         "current",
     ]);
+    t.refuse_unmodelled(CORE_KEYS, NO_CORES)?;
     let id = parse_id(t)?;
     let kind = parse_kind(t, KINDS, &[])?;
     let frame = parse_frame(t)?;

@@ -1,9 +1,10 @@
 //! `[[victim]]` tables → closed edge chains, turns, limits and self-inductance.
 
 use super::common::{
-    Context, check_wire, parse_frame, parse_id, parse_kind, parse_polygon, rectangle_sides,
-    wire_size,
+    Context, check_wire, closed_corners, parse_frame, parse_id, parse_kind, parse_polygon,
+    rectangle_sides, wire_size,
 };
+use super::points_csv::read_path;
 use super::reader::Table;
 use crate::error::InputError;
 use crate::field::Vec3;
@@ -13,8 +14,10 @@ use crate::model::{Victim, VictimKind};
 use crate::units::Dimension;
 use std::f64::consts::TAU;
 
-const KINDS: &[&str] = &["loop", "rectangle", "polygon", "trace"];
-const GEOMETRY_KEYS: &[&str] = &["radius", "width", "height", "vertices", "length", "load"];
+const KINDS: &[&str] = &["loop", "rectangle", "polygon", "trace", "file"];
+const GEOMETRY_KEYS: &[&str] = &[
+    "radius", "width", "height", "vertices", "length", "load", "path",
+];
 
 /// e^{−5/4}: a thin strip of width w has the self-GMD w·e^{−3/2} (Maxwell; Grover,
 /// "Inductance Calculations", table of GMDs), a round wire of radius a has a·e^{−1/4};
@@ -60,6 +63,7 @@ pub(crate) fn parse(t: &Table<'_, '_>, ctx: &Context) -> Result<Victim, InputErr
             straight(&frame, &corners, wire_radius, ctx)
         }
         "trace" => parse_trace(t, &frame, explicit_radius, &mut wire_radius, ctx)?,
+        "file" => parse_file(t, &frame, wire_radius, ctx)?,
         _ => unreachable!("kind checked by parse_kind"),
     };
     t.finish(GEOMETRY_KEYS, &format!("a victim of kind \"{kind}\""))?;
@@ -152,6 +156,25 @@ fn parse_trace(
         Vec3::new(-lv / 2.0, hv, 0.0),
     ];
     Ok(straight(frame, &corners, *wire_radius, ctx))
+}
+
+/// The edges and one-turn self-inductance of a `file` victim: the closed path through
+/// the CSV's points (local, m), closed by a straight side when the last point is not the
+/// first. Problems with the points are reported at the CSV's own lines.
+fn parse_file(
+    t: &Table<'_, '_>,
+    frame: &Frame,
+    wire_radius: f64,
+    ctx: &Context,
+) -> Result<(Vec<Edge>, f64), InputError> {
+    let pv = t.require("path", "a CSV file of x,y,z points, relative to the scene")?;
+    let path = read_path(&pv, &ctx.base_dir)?;
+    let pts = path.rows.iter().map(|r| r.0).collect();
+    let corners = closed_corners(pts, wire_radius).map_err(|(at, why)| {
+        let line = path.rows[at.unwrap_or(0)].1;
+        path.error(line, why)
+    })?;
+    Ok(straight(frame, &corners, wire_radius, ctx))
 }
 
 /// The exact circle of `radius` (m) about the frame's z, counter-clockwise.

@@ -102,6 +102,13 @@ pub(super) fn contact_warning(scene: &Scene, v: &Victim) -> Option<String> {
 /// that stay clear by more are done, and the rest are halved (to a depth of 40).
 fn edge_touches(e: &Edge, gap: &dyn Fn(&Vec3) -> f64) -> bool {
     let len = e.length();
+    // A short edge far from every wire: the gap at its ends leaves no room to reach zero
+    // in between (it is at least (g0 + g1 − len)/2 there), so a finely sampled victim
+    // path costs two evaluations per edge.
+    let (g0, g1) = (gap(&e.point(0.0)), gap(&e.point(1.0)));
+    if g0 + g1 > 2.0 * len {
+        return false;
+    }
     let mut stack: Vec<(f64, f64, f64, f64, u32)> = Vec::new();
     let n = 64;
     let mut prev = (0.0, gap(&e.point(0.0)));

@@ -1,7 +1,7 @@
 //! `[[source]]` winding kinds: helix, toroid, spiral, saddle, pair, file.
 
 use super::common::{Context, check_wire};
-use super::points_csv::read_point_rows;
+use super::points_csv::read_path;
 use super::reader::{Table, Value};
 use crate::error::InputError;
 use crate::field::{Conductors, Polyline, Vec3};
@@ -256,46 +256,15 @@ fn parse_file(
     warnings: &mut Vec<String>,
 ) -> Result<Polyline, InputError> {
     let pv = t.require("path", "a CSV file of x,y,z points, relative to the scene")?;
-    let rel = pv.string()?;
-    let path = ctx.base_dir.join(rel);
-    if !path.is_file() {
-        return Err(pv.error(format!("cannot read \"{}\": no such file", path.display())));
-    }
-    let rows = read_point_rows(&path)?;
-    let name = path.display().to_string();
-    if rows.len() < 2 {
-        return Err(row_error(
-            &name,
-            rows.first().map_or(1, |r| r.1),
-            "a path needs at least 2 points",
-        ));
-    }
-    for w in rows.windows(2) {
-        if w[0].0 == w[1].0 {
-            return Err(row_error(
-                &name,
-                w[1].1,
-                "repeats the previous point: a zero-length segment",
-            ));
-        }
-    }
+    let rows = read_path(&pv, &ctx.base_dir)?.rows;
     let pts: Vec<Vec3> = rows.iter().map(|r| frame.point(&r.0)).collect();
     let closed = pts.len() > 3 && rows.first().map(|r| r.0) == rows.last().map(|r| r.0);
     if !closed {
         warnings.push(format!(
-            "the path in \"{rel}\" is open (its first and last points differ): its return path \
-             is not modelled"
+            "the path in \"{}\" is open (its first and last points differ): its return path \
+             is not modelled",
+            pv.string()?
         ));
     }
     Ok(Polyline::new(pts, wire_radius))
-}
-
-fn row_error(file: &str, line: usize, reason: &str) -> InputError {
-    InputError {
-        file: file.to_string(),
-        line,
-        col: 1,
-        key: "row".into(),
-        reason: reason.into(),
-    }
 }

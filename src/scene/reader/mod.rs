@@ -10,6 +10,7 @@ use std::ops::Range;
 use toml::Spanned;
 use toml::de::{DeTable, DeValue};
 
+mod plausible;
 mod value;
 
 /// Largest length (m) a scene may give: 1000 km.
@@ -21,6 +22,8 @@ pub struct Doc {
     line_starts: Vec<usize>,
     text_len: usize,
     text: String,
+    /// Warnings about values read so far, each `FILE:LINE:COL: key: reason`.
+    warnings: RefCell<Vec<String>>,
 }
 
 impl Doc {
@@ -33,7 +36,22 @@ impl Doc {
             line_starts,
             text_len: text.len(),
             text: text.to_string(),
+            warnings: RefCell::new(Vec::new()),
         }
+    }
+
+    /// Records a warning at byte span `span` about `key` (once per place and text).
+    pub fn warn(&self, span: &Range<usize>, key: &str, reason: impl Into<String>) {
+        let w = self.error(span, key, reason).to_string();
+        let mut all = self.warnings.borrow_mut();
+        if !all.contains(&w) {
+            all.push(w);
+        }
+    }
+
+    /// The warnings recorded so far, in the order they were found; they are removed.
+    pub fn take_warnings(&self) -> Vec<String> {
+        self.warnings.take()
     }
 
     /// One-based line and column (in characters) of byte `offset`.
@@ -204,6 +222,23 @@ impl<'a, 'i> Table<'a, 'i> {
     /// Whether `name` is present (does not count as read).
     pub fn has(&self, name: &str) -> bool {
         self.table.contains_key(name)
+    }
+
+    /// Refuses the first of `keys` present in this table: each names a feature a user
+    /// may expect but the program does not model, and `reason` says so and what to do
+    /// instead. The error is at the key, not an "unknown key" one.
+    pub fn refuse_unmodelled(&self, keys: &[&str], reason: &str) -> Result<(), InputError> {
+        match self
+            .table
+            .iter()
+            .find(|(k, _)| keys.contains(&k.get_ref().as_ref()))
+        {
+            Some((k, _)) => {
+                let name: &str = k.get_ref().as_ref();
+                Err(self.doc.error(&k.span(), &self.path_of(name), reason))
+            }
+            None => Ok(()),
+        }
     }
 
     /// Fails on the first key that was never read. `also` lists keys valid elsewhere in

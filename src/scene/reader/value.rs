@@ -84,7 +84,13 @@ impl<'a, 'i> Value<'a, 'i> {
     pub fn quantity(&self, dim: Dimension) -> Result<f64, InputError> {
         let x = match self.value {
             DeValue::String(s) => parse_quantity(s, dim).map_err(|e| self.error(e.0))?,
-            DeValue::Integer(_) | DeValue::Float(_) => self.number()?,
+            DeValue::Integer(_) | DeValue::Float(_) => {
+                let x = self.number()?;
+                if let Some(why) = super::plausible::bare_warning(&self.key, dim, x, &self.raw()) {
+                    self.doc.warn(&self.span, &self.key, why);
+                }
+                x
+            }
             _ => {
                 return Err(self.type_error(&format!(
                     "{} such as {} (or a bare number in SI units)",

@@ -279,6 +279,8 @@ fn off_scale(result: &SweepResult, c: &Curve, floor: Option<f64>) -> Option<Stri
     let value = |k: usize| result.spec.vary.format_value(result.rows[k].value);
     let place = if under.len() == c.values.len() {
         "everywhere".to_string()
+    } else if first == last {
+        format!("at {}", value(first))
     } else if last - first + 1 == under.len() {
         format!("from {} to {}", value(first), value(last))
     } else {
@@ -342,14 +344,7 @@ fn separation_axis(
         sep.at(moved) * 1e3
     };
     let (s0, s1) = (mm(x0).min(mm(x1)), mm(x0).max(mm(x1)));
-    let ticks = if x_axis.log {
-        super::log_ticks(s0.log10(), s1.log10())
-            .into_iter()
-            .map(|t| 10f64.powf(t))
-            .collect()
-    } else {
-        super::linear_ticks(s0, s1)
-    };
+    let ticks = separation_ticks(s0, s1, x_axis.log);
     let style =
         ("sans-serif", 15)
             .into_font()
@@ -358,6 +353,7 @@ fn separation_axis(
                 plotters::style::text_anchor::HPos::Center,
                 plotters::style::text_anchor::VPos::Bottom,
             ));
+    let mut last = f64::NEG_INFINITY;
     for s in ticks {
         let Some(moved) = sep.moved_for(s * 1e-3) else {
             continue;
@@ -366,9 +362,11 @@ fn separation_axis(
             continue;
         }
         let x = x_axis.to_plot(moved);
-        if x < x0 || x > x1 {
+        // Skip ticks outside the axis and labels closer than about 40 px to the last.
+        if x < x0 || x > x1 || (x - last) < 0.05 * (x1 - x0) {
             continue;
         }
+        last = x;
         chart
             .draw_series(std::iter::once(
                 EmptyElement::at((x, top))
@@ -393,4 +391,29 @@ fn separation_axis(
         ))
         .map_err(err)?;
     Ok(())
+}
+
+/// Round separations (mm) from `s0` to `s1` for the top axis: 1-2-5 steps, or on a log
+/// axis 1, 1.5, 2, 3, 5 and 7 of each decade when 1-2-5 would give fewer than four.
+fn separation_ticks(s0: f64, s1: f64, log: bool) -> Vec<f64> {
+    if !log {
+        return super::linear_ticks(s0, s1);
+    }
+    let ticks: Vec<f64> = super::log_ticks(s0.log10(), s1.log10())
+        .into_iter()
+        .map(|t| 10f64.powf(t))
+        .collect();
+    if ticks.len() >= 4 {
+        return ticks;
+    }
+    let mut out = Vec::new();
+    for k in (s0.log10().floor() as i32)..=(s1.log10().ceil() as i32) {
+        for m in [1.0, 1.5, 2.0, 3.0, 5.0, 7.0] {
+            let t = m * 10f64.powi(k);
+            if t >= s0 && t <= s1 {
+                out.push(t);
+            }
+        }
+    }
+    out
 }

@@ -149,7 +149,7 @@ fn y_range(
     let clipped = curves
         .iter()
         .flat_map(|c| c.values.iter())
-        .any(|v| !(v.log10() >= floor));
+        .any(|&v| under(v, floor));
     (Some(floor), (if clipped { floor } else { lo }, hi))
 }
 
@@ -219,7 +219,8 @@ fn line_curves(result: &SweepResult) -> Vec<Curve> {
         .collect()
 }
 
-/// The legend: every curve (and where it is off scale), the limit, the safe distance.
+/// The legend: every curve (and where it is off scale under `floor`, log10 of volts),
+/// the limit, the safe distance.
 fn legend(
     result: &SweepResult,
     curves: &[Curve],
@@ -268,23 +269,33 @@ fn legend(
     out
 }
 
-/// Where curve `c` is under the floor (volts), as a legend text; `None` when nowhere.
+/// Whether `v` (V) is under the floor (log10 of volts), as `runs_above` cuts curves:
+/// zero and NaN are under it.
+fn under(v: f64, floor: f64) -> bool {
+    !matches!(
+        v.log10().partial_cmp(&floor),
+        Some(std::cmp::Ordering::Greater | std::cmp::Ordering::Equal)
+    )
+}
+
+/// Where curve `c` is under the floor (log10 of volts), as a legend text; `None` when
+/// nowhere.
 fn off_scale(result: &SweepResult, c: &Curve, floor: Option<f64>) -> Option<String> {
     let floor = floor?;
-    let under: Vec<usize> = (0..c.values.len())
-        .filter(|&k| !(c.values[k] >= floor * (1.0 - 1e-12)))
+    let steps: Vec<usize> = (0..c.values.len())
+        .filter(|&k| under(c.values[k], floor))
         .collect();
-    let (first, last) = (*under.first()?, *under.last()?);
-    let f = format_si(floor, "V", 3);
+    let (first, last) = (*steps.first()?, *steps.last()?);
+    let f = format_si(10f64.powf(floor), "V", 3);
     let value = |k: usize| result.spec.vary.format_value(result.rows[k].value);
-    let place = if under.len() == c.values.len() {
+    let place = if steps.len() == c.values.len() {
         "everywhere".to_string()
     } else if first == last {
         format!("at {}", value(first))
-    } else if last - first + 1 == under.len() {
+    } else if last - first + 1 == steps.len() {
         format!("from {} to {}", value(first), value(last))
     } else {
-        format!("at {} of {} steps", under.len(), c.values.len())
+        format!("at {} of {} steps", steps.len(), c.values.len())
     };
     Some(format!("{}: under {f} {place} (off scale)", c.label))
 }

@@ -65,13 +65,7 @@ pub fn sweep_svg(result: &SweepResult, scene: &Scene) -> Result<String, PlotErro
         x_axis.log,
     );
     let y_of = |v: f64| y_axis.to_plot(v);
-    let legend = legend(
-        result,
-        &curves,
-        limit_shown,
-        floor.map(|f| 10f64.powf(f)),
-        sep.as_ref(),
-    );
+    let legend = legend(result, &curves, limit_shown, floor, sep.as_ref());
     let title = [TitleLine {
         text: format!(
             "EMF induced in \"{}\" versus {}{} (sweep \"{}\")",

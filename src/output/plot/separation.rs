@@ -1,6 +1,7 @@
 //! Distance sweeps: the separation between the victim's centre and the centre of the
 //! nearest source (its frame origin), shown beside the distance moved.
 
+use super::three_figures;
 use crate::field::Vec3;
 use crate::model::{Scene, SweepSpec};
 
@@ -50,6 +51,32 @@ impl Separation {
     pub fn receding(&self, from: f64, to: f64) -> bool {
         from.min(to) >= -self.offset.dot(&self.along)
     }
+
+    /// When the separation does not grow over the whole range from `from` to `to` (m),
+    /// so that no second axis can show it: a legend note with the separation at the
+    /// start, at the closest approach when it lies inside the range, and at the end.
+    pub fn passing_note(&self, from: f64, to: f64) -> Option<String> {
+        if self.receding(from, to) {
+            return None;
+        }
+        // `+ 0.0` turns a negative zero into "0".
+        let mm = |m: f64| three_figures(m * 1e3 + 0.0);
+        let closest = -self.offset.dot(&self.along);
+        let mut parts = vec![format!("{} mm at {} mm moved", mm(self.at(from)), mm(from))];
+        if closest > from.min(to) && closest < from.max(to) {
+            parts.push(format!(
+                "{} mm (closest) at {} mm",
+                mm(self.at(closest)),
+                mm(closest)
+            ));
+        }
+        parts.push(format!("{} mm at {} mm", mm(self.at(to)), mm(to)));
+        Some(format!(
+            "centre-to-centre separation from \"{}\": {}",
+            self.source,
+            parts.join(", ")
+        ))
+    }
 }
 
 #[cfg(test)]
@@ -71,5 +98,12 @@ mod tests {
         assert!((s.at(m) - 0.1).abs() < 1e-12, "{m}");
         assert!(s.moved_for(0.002).is_none());
         assert!(s.receding(0.001, 0.3) && !s.receding(-0.05, 0.3));
+        // Passing by: 5 mm apart at the closest approach, m = −40 mm.
+        let note = s.passing_note(-0.044, 0.0).unwrap();
+        assert!(
+            note.ends_with("5 mm at -44 mm moved, 3 mm (closest) at -40 mm, 40.1 mm at 0 mm"),
+            "{note}"
+        );
+        assert!(s.passing_note(0.0, 0.1).is_none());
     }
 }

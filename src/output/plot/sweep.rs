@@ -31,7 +31,7 @@ pub fn sweep_svg(result: &SweepResult, scene: &Scene) -> Result<String, PlotErro
         Vary::Distance(d) => Separation::new(scene, spec, d),
         _ => None,
     };
-    let x_axis = sweep_x_axis(spec, sep.as_ref());
+    let x_axis = sweep_x_axis(spec);
     let y_log = !matches!(spec.vary, Vary::Angle(_));
     let y_axis = Axis {
         label: "induced EMF, rms".into(),
@@ -251,6 +251,12 @@ fn legend(
             },
         });
     }
+    if let Some(text) = sep.and_then(|p| p.passing_note(result.spec.from, result.spec.to)) {
+        out.push(Entry {
+            sample: Sample::Note,
+            text,
+        });
+    }
     if let Some(s) = result.safe_value.filter(|&s| s != result.spec.from) {
         let apart = sep.map_or(String::new(), |p| {
             format!(", {} mm apart", three_figures(p.at(s) * 1e3))
@@ -294,9 +300,8 @@ fn off_scale(result: &SweepResult, c: &Curve, floor: Option<f64>) -> Option<Stri
     Some(format!("{}: under {f} {place} (off scale)", c.label))
 }
 
-/// The x axis of a sweep's plot. A distance axis says along what; when the separation
-/// from the nearest source is not shown on its own axis, its range is in the label.
-fn sweep_x_axis(spec: &crate::model::SweepSpec, sep: Option<&Separation>) -> Axis {
+/// The x axis of a sweep's plot; a distance axis says along what.
+fn sweep_x_axis(spec: &crate::model::SweepSpec) -> Axis {
     let v = |d: &crate::field::Vec3| {
         format!(
             "[{}, {}, {}]",
@@ -307,15 +312,7 @@ fn sweep_x_axis(spec: &crate::model::SweepSpec, sep: Option<&Separation>) -> Axi
     };
     let (label, unit, scale, angle) = match spec.vary {
         Vary::Distance(d) => {
-            let mut label = format!("distance moved along {} (mm)", v(&d));
-            if let Some(s) = sep.filter(|s| !s.receding(spec.from, spec.to)) {
-                label.push_str(&format!(
-                    "; separation from the centre of \"{}\": {} to {} mm",
-                    s.source,
-                    three_figures(s.at(spec.from) * 1e3),
-                    three_figures(s.at(spec.to) * 1e3)
-                ));
-            }
+            let label = format!("distance moved along {} (mm)", v(&d));
             (label, "", 1e-3, false)
         }
         Vary::Angle(a) => (

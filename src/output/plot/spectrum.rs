@@ -248,4 +248,15 @@ mod tests {
             "{text}"
         );
     }
+
+    #[test]
+    fn a_total_that_does_not_converge_gets_no_line_and_no_verdict() {
+        let lines = [(1e3, 1e-3), (3e3, 0.33e-3)];
+        let svg = spectrum_svg(&plot(&lines, None, Some(2e-3))).unwrap();
+        assert!(svg.contains("total does not converge: no verdict (limit 2.00 mV rms)"));
+        assert!(svg.contains("total: does not converge, not drawn"));
+        assert!(!svg.contains("LIMIT") && !svg.contains("within limit"));
+        // The total's colour (BLUE_700) appears nowhere: no total line, no sample.
+        assert!(!svg.contains("#1976D2"));
+    }
 }

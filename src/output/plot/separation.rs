@@ -1,9 +1,10 @@
 //! Distance sweeps: the separation between the victim's centre and the centre of the
 //! nearest source (its frame origin), shown beside the distance moved.
 
-use super::three_figures;
+use super::{Axis, Chart, PlotError, err, three_figures};
 use crate::field::Vec3;
 use crate::model::{Scene, SweepSpec};
+use plotters::prelude::*;
 
 /// The victim's centre relative to one source's centre as the victim moves.
 pub(super) struct Separation {
@@ -77,6 +78,95 @@ impl Separation {
             parts.join(", ")
         ))
     }
+}
+
+impl Separation {
+    /// A second x axis along the top of the plot: the separation between the victim's
+    /// centre and the nearest source's centre, in mm, at round values.
+    pub fn draw_axis(
+        &self,
+        chart: &mut Chart<'_, '_>,
+        x_axis: &Axis,
+        (x0, x1): (f64, f64),
+        top: f64,
+    ) -> Result<(), PlotError> {
+        let mm = |x: f64| {
+            let moved = if x_axis.log { 10f64.powf(x) } else { x } * x_axis.scale;
+            self.at(moved) * 1e3
+        };
+        let (s0, s1) = (mm(x0).min(mm(x1)), mm(x0).max(mm(x1)));
+        let ticks = separation_ticks(s0, s1, x_axis.log);
+        let style = ("sans-serif", 15).into_font().color(&BLACK).pos(
+            plotters::style::text_anchor::Pos::new(
+                plotters::style::text_anchor::HPos::Center,
+                plotters::style::text_anchor::VPos::Bottom,
+            ),
+        );
+        let mut last = f64::NEG_INFINITY;
+        for s in ticks {
+            let Some(moved) = self.moved_for(s * 1e-3) else {
+                continue;
+            };
+            if x_axis.log && moved <= 0.0 {
+                continue;
+            }
+            let x = x_axis.to_plot(moved);
+            // Skip ticks outside the axis and labels closer than about 40 px to the last.
+            if x < x0 || x > x1 || (x - last) < 0.05 * (x1 - x0) {
+                continue;
+            }
+            last = x;
+            chart
+                .draw_series(std::iter::once(
+                    EmptyElement::at((x, top))
+                        + PathElement::new(vec![(0, 0), (0, -5)], BLACK.stroke_width(1))
+                        + Text::new(three_figures(s), (0, -7), style.clone()),
+                ))
+                .map_err(err)?;
+        }
+        let title = format!(
+            "separation between the centres of the victim and \"{}\" (mm)",
+            self.source
+        );
+        chart
+            .draw_series(std::iter::once(
+                EmptyElement::at(((x0 + x1) / 2.0, top))
+                    + Text::new(title, (0, -27), style.clone()),
+            ))
+            .map_err(err)?;
+        chart
+            .draw_series(LineSeries::new(
+                vec![(x0, top), (x1, top)],
+                BLACK.stroke_width(1),
+            ))
+            .map_err(err)?;
+        Ok(())
+    }
+}
+
+/// Round separations (mm) from `s0` to `s1` for the top axis: 1-2-5 steps, or on a log
+/// axis 1, 1.5, 2, 3, 5 and 7 of each decade when 1-2-5 would give fewer than four.
+fn separation_ticks(s0: f64, s1: f64, log: bool) -> Vec<f64> {
+    if !log {
+        return super::linear_ticks(s0, s1);
+    }
+    let ticks: Vec<f64> = super::log_ticks(s0.log10(), s1.log10())
+        .into_iter()
+        .map(|t| 10f64.powf(t))
+        .collect();
+    if ticks.len() >= 4 {
+        return ticks;
+    }
+    let mut out = Vec::new();
+    for k in (s0.log10().floor() as i32)..=(s1.log10().ceil() as i32) {
+        for m in [1.0, 1.5, 2.0, 3.0, 5.0, 7.0] {
+            let t = m * 10f64.powi(k);
+            if t >= s0 && t <= s1 {
+                out.push(t);
+            }
+        }
+    }
+    out
 }
 
 #[cfg(test)]

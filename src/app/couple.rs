@@ -61,7 +61,14 @@ pub fn couple(
                 .iter()
                 .map(|(f, e)| (*f, e.norm() / std::f64::consts::SQRT_2))
                 .collect();
-            match plot::spectrum_svg(&r.id, &lines, r.limit) {
+            let spectrum = plot::SpectrumPlot {
+                victim_id: &r.id,
+                lines: &lines,
+                total: r.total_rms(),
+                limit: r.limit,
+                margin_db: r.margin_db(),
+            };
+            match plot::spectrum_svg(&spectrum) {
                 Ok(svg) => files.push((dir.join(format!("{}-spectrum.svg", r.id)), svg)),
                 Err(why) => warnings.push(why),
             }

@@ -109,12 +109,11 @@ fn sweep_files(
 ) -> Result<Vec<(PathBuf, String)>, Error> {
     let mut outputs = Vec::new();
     for r in results {
-        let victim = &scene.victims[r.spec.victim].id;
         outputs.push((
             out_dir.join(format!("{}.csv", r.spec.id)),
             csv::sweep_csv(r),
         ));
-        match plot::sweep_svg(r, victim) {
+        match plot::sweep_svg(r, scene) {
             Ok(svg) => outputs.push((out_dir.join(format!("{}.svg", r.spec.id)), svg)),
             Err(why) => warnings.push(format!("sweep \"{}\": {why}", r.spec.id)),
         }

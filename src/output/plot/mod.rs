@@ -1,18 +1,20 @@
 //! SVG plots drawn with the plotters crate: EMF versus the swept value, and the EMF
 //! spectrum of a victim. Logarithmic axes are drawn as linear axes of log10(value)
-//! with their labels written back in engineering units.
+//! with their labels written back in engineering units. Each figure has its title
+//! above the chart and its legend in a band below it (`layout`), never over the data;
+//! a curve that falls below the plot's floor is cut where it crosses the floor and
+//! named in the legend, not drawn along the floor.
 
 use crate::units::format_si;
 use plotters::prelude::*;
-use plotters::style::full_palette::{GREY_500, RED_700};
 
+mod layout;
+mod separation;
 mod spectrum;
 mod sweep;
 
-pub use spectrum::spectrum_svg;
+pub use spectrum::{SpectrumPlot, spectrum_svg};
 pub use sweep::sweep_svg;
-
-const SIZE: (u32, u32) = (900, 560);
 
 /// One axis: its label, whether it is logarithmic, and how to print a value.
 struct Axis {
@@ -20,6 +22,8 @@ struct Axis {
     log: bool,
     unit: &'static str,
     scale: f64,
+    /// An axis of angles in degrees: ticks every 30° (or 90° over wide ranges).
+    angle: bool,
 }
 
 impl Axis {
@@ -67,7 +71,7 @@ const LINE_COLOURS: [RGBColor; 8] = [
 
 /// A plotted axis (in log10 units on log axes) that places its own ticks: 1, 2 and 5
 /// of each decade on a log axis spanning up to three decades, whole decades beyond
-/// that; 1-2-5 steps on a linear axis.
+/// that; 1-2-5 steps on a linear axis; multiples of 30° on a linear axis of angles.
 #[derive(Clone)]
 struct Ticked {
     lo: f64,
@@ -76,14 +80,32 @@ struct Ticked {
 }
 
 impl Ticked {
-    fn new(lo: f64, hi: f64, log: bool) -> Self {
-        let ticks = if log {
+    fn new(lo: f64, hi: f64, axis: &Axis) -> Self {
+        let ticks = if axis.log {
             log_ticks(lo, hi)
+        } else if axis.angle {
+            angle_ticks(lo, hi)
         } else {
             linear_ticks(lo, hi)
         };
         Ticked { lo, hi, ticks }
     }
+}
+
+/// Ticks of an axis in degrees: every 30° over spans from 60° to 400°, every 90° over
+/// wider ones, 1-2-5 steps over narrower ones.
+fn angle_ticks(lo: f64, hi: f64) -> Vec<f64> {
+    let span = hi - lo;
+    let step = if span > 400.0 {
+        90.0
+    } else if span >= 60.0 {
+        30.0
+    } else {
+        return linear_ticks(lo, hi);
+    };
+    let first = (lo / step).ceil() as i64;
+    let last = (hi / step).floor() as i64;
+    (first..=last).map(|k| k as f64 * step).collect()
 }
 
 fn log_ticks(lo: f64, hi: f64) -> Vec<f64> {
@@ -163,23 +185,21 @@ fn err<E: std::fmt::Display>(e: E) -> PlotError {
     format!("cannot draw the plot: {e}")
 }
 
-/// A chart with our axes, labels and mesh on `root`.
+/// A chart with our axes, labels and mesh on `area`, `top` px under its top edge.
 fn axes_chart<'a, 'b>(
-    root: &'a DrawingArea<SVGBackend<'b>, plotters::coord::Shift>,
-    caption: String,
+    area: &'a layout::Area<'b>,
     (x_axis, y_axis): (&Axis, &Axis),
     (x0, x1): (f64, f64),
     (y0, y1): (f64, f64),
+    top: u32,
 ) -> Result<Chart<'a, 'b>, PlotError> {
-    let mut chart = ChartBuilder::on(root)
-        .caption(caption, ("sans-serif", 22))
+    let mut chart = ChartBuilder::on(area)
         .margin(16)
+        .margin_top(top)
+        .margin_right(24)
         .x_label_area_size(48)
         .y_label_area_size(86)
-        .build_cartesian_2d(
-            Ticked::new(x0, x1, x_axis.log),
-            Ticked::new(y0, y1, y_axis.log),
-        )
+        .build_cartesian_2d(Ticked::new(x0, x1, x_axis), Ticked::new(y0, y1, y_axis))
         .map_err(err)?;
     chart
         .configure_mesh()
@@ -194,37 +214,83 @@ fn axes_chart<'a, 'b>(
     Ok(chart)
 }
 
-/// The legend in `corner`, on a nearly opaque white box.
-fn draw_legend<'a, 'b: 'a>(
-    chart: &mut Chart<'a, 'b>,
-    corner: SeriesLabelPosition,
-) -> Result<(), PlotError> {
-    chart
-        .configure_series_labels()
-        .position(corner)
-        .background_style(WHITE.mix(0.9))
-        .border_style(GREY_500)
-        .label_font(("sans-serif", 15))
-        .draw()
-        .map_err(err)
-}
-
 type Chart<'a, 'b> = ChartContext<'a, SVGBackend<'b>, Cartesian2d<Ticked, Ticked>>;
 
-/// The limit as a red horizontal line at plotted height `y`, with its legend entry.
-fn limit_line(
+/// A horizontal line across the plot at plotted height `y`, dashed or solid.
+fn level_line(
     chart: &mut Chart<'_, '_>,
     (x0, x1): (f64, f64),
     y: f64,
-    label: String,
+    style: ShapeStyle,
+    dashed: bool,
 ) -> Result<(), PlotError> {
-    chart
-        .draw_series(LineSeries::new(
-            vec![(x0, y), (x1, y)],
-            RED_700.stroke_width(2),
-        ))
-        .map_err(err)?
-        .label(label)
-        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 24, y)], RED_700.stroke_width(2)));
+    if dashed {
+        chart
+            .draw_series(DashedLineSeries::new(vec![(x0, y), (x1, y)], 10, 6, style))
+            .map_err(err)?;
+    } else {
+        chart
+            .draw_series(LineSeries::new(vec![(x0, y), (x1, y)], style))
+            .map_err(err)?;
+    }
     Ok(())
+}
+
+/// The runs of a curve (plotted units) that lie at or above `floor`. A run that meets
+/// the floor ends (or starts) exactly on it, interpolated on the plotted axes, so that
+/// the curve is seen to leave the plot through its floor instead of running along it.
+/// Points with a non-finite height (a zero on a log axis) count as below the floor.
+fn runs_above(pts: &[(f64, f64)], floor: f64) -> Vec<Vec<(f64, f64)>> {
+    let above = |p: &(f64, f64)| p.1.is_finite() && p.1 >= floor;
+    let crossing = |a: (f64, f64), b: (f64, f64)| {
+        // `a` above the floor, `b` below it.
+        if b.1.is_finite() {
+            let t = (a.1 - floor) / (a.1 - b.1);
+            (a.0 + t * (b.0 - a.0), floor)
+        } else {
+            (a.0, floor)
+        }
+    };
+    let mut runs = Vec::new();
+    let mut run: Vec<(f64, f64)> = Vec::new();
+    for (k, p) in pts.iter().enumerate() {
+        if above(p) {
+            if run.is_empty() && k > 0 {
+                run.push(crossing(*p, pts[k - 1]));
+            }
+            run.push(*p);
+        } else if !run.is_empty() {
+            run.push(crossing(pts[k - 1], *p));
+            runs.push(std::mem::take(&mut run));
+        }
+    }
+    if !run.is_empty() {
+        runs.push(run);
+    }
+    runs
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_curve_below_the_floor_is_cut_where_it_crosses_it() {
+        // Straight segments: the crossing of y = 0 between (1, 1) and (2, -1) is x = 1.5.
+        let pts = [(0.0, 2.0), (1.0, 1.0), (2.0, -1.0), (3.0, -3.0), (4.0, 1.0)];
+        let runs = runs_above(&pts, 0.0);
+        assert_eq!(runs.len(), 2);
+        assert_eq!(runs[0], vec![(0.0, 2.0), (1.0, 1.0), (1.5, 0.0)]);
+        assert_eq!(runs[1], vec![(3.75, 0.0), (4.0, 1.0)]);
+        assert!(runs_above(&[(0.0, f64::NEG_INFINITY), (1.0, -1.0)], 0.0).is_empty());
+    }
+
+    #[test]
+    fn angle_axes_tick_every_thirty_degrees() {
+        assert_eq!(
+            angle_ticks(-5.0, 185.0),
+            [0.0, 30.0, 60.0, 90.0, 120.0, 150.0, 180.0]
+        );
+        assert_eq!(angle_ticks(0.0, 720.0)[1], 90.0);
+    }
 }

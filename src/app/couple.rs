@@ -36,6 +36,7 @@ pub fn couple(
                 s.id, r.id
             ));
         }
+        warnings.extend(crate::run::warnings::couple_shielding_warning(r));
     }
     let over = reports.iter().any(|r| r.pass() == Some(false));
     if let Some(dir) = plot_dir {

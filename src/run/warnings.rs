@@ -17,7 +17,8 @@ pub const IDEAL_SHIELDING_NOTE: &str = "beyond about 100 dB the figure is an ide
      infinite and seamless sheet's; real shields leak at seams, holes and edges";
 
 /// `couple`: a warning when a line's shielding into the victim of `report` exceeds
-/// [`IDEAL_SHIELDING_DB`], naming the largest (dB), its line (Hz) and its source.
+/// [`IDEAL_SHIELDING_DB`], naming the largest (dB; the first line that reaches it), its
+/// line (Hz) and its source.
 pub fn couple_shielding_warning(report: &VictimReport) -> Option<String> {
     let (db, f, source) = report
         .sources
@@ -28,19 +29,29 @@ pub fn couple_shielding_warning(report: &VictimReport) -> Option<String> {
                 .map(move |l| (l.shielding_db, l.frequency, &s.id))
         })
         .filter(|l| l.0 > IDEAL_SHIELDING_DB)
-        .max_by(|a, b| a.0.total_cmp(&b.0))?;
+        .min_by(|a, b| b.0.total_cmp(&a.0))?;
     Some(format!(
-        "victim \"{}\": shielding reaches {db:.1} dB (the {} line of source \"{source}\"); \
+        "victim \"{}\": the shielding of the {} line of source \"{source}\" reaches {}; \
          {IDEAL_SHIELDING_NOTE}",
         report.id,
-        crate::units::format_si(f, "Hz", 4)
+        crate::units::format_si(f, "Hz", 4),
+        shown_db(db)
     ))
+}
+
+/// A shielding (dB) for a warning; at the report's cap, said so.
+fn shown_db(db: f64) -> String {
+    if db >= crate::shield::SHIELDING_CAP_DB {
+        format!("{db:.0} dB or more, the report's cap")
+    } else {
+        format!("{db:.1} dB")
+    }
 }
 
 /// `sweep`: the warnings of one finished sweep: contact (one warning naming every
 /// source touched and the range of swept values where it is), then shielding over
-/// [`IDEAL_SHIELDING_DB`] (one warning naming the largest value, with every compared
-/// alternative included).
+/// [`IDEAL_SHIELDING_DB`] (one warning naming the largest value and the first step that
+/// reaches it, with every compared alternative included).
 pub fn sweep_warnings(scene: &Scene, result: &SweepResult) -> Vec<String> {
     let mut out = Vec::new();
     out.extend(contact_warning(scene, result));
@@ -123,15 +134,16 @@ fn shielding_warning(scene: &Scene, result: &SweepResult) -> Option<String> {
         .chain(alts)
         .flat_map(|(r, o)| r.shielding_db.iter().map(move |&db| (db, r, o)))
         .filter(|x| x.0 > IDEAL_SHIELDING_DB)
-        .max_by(|a, b| a.0.total_cmp(&b.0))?;
+        .min_by(|a, b| b.0.total_cmp(&a.0))?;
     let spec = &result.spec;
     Some(format!(
-        "sweep \"{}\": the shielding of victim \"{}\" reaches {db:.1} dB{} at {} = {}; \
+        "sweep \"{}\": the shielding of victim \"{}\"{} at {} = {} reaches {}; \
          {IDEAL_SHIELDING_NOTE}",
         spec.id,
         scene.victims[spec.victim].id,
         option.map_or(String::new(), |o| format!(" with {o}")),
         spec.vary.name(),
-        spec.vary.format_value(row.value)
+        spec.vary.format_value(row.value),
+        shown_db(db)
     ))
 }

@@ -198,7 +198,7 @@ struct CompareJson {
     shield: Option<String>,
     total_emf_v_rms: Vec<f64>,
     rows: Vec<CompareRow>,
-    placed: CompareRow,
+    placed: Option<CompareRow>,
 }
 
 /// One step of a compared alternative, or the alternative at the placed position
@@ -274,11 +274,11 @@ fn compare_json(vary: &crate::model::Vary, a: &Alternative) -> CompareJson {
                 lines: row_lines(&r.lines, &r.shielding_db),
             })
             .collect(),
-        placed: CompareRow {
+        placed: a.placed.as_ref().map(|p| CompareRow {
             value: None,
-            total_emf_v_rms: a.placed.total_rms,
-            lines: row_lines(&a.placed.lines, &a.placed.shielding_db),
-        },
+            total_emf_v_rms: p.total_rms,
+            lines: row_lines(&p.lines, &p.shielding_db),
+        }),
     }
 }
 

@@ -77,8 +77,9 @@ pub struct Alternative {
     /// per-line shielding (dB, against nothing fitted; empty for no shield).
     pub rows: Vec<SweepRow>,
     /// At the placed position with the scene's own lines: per-line EMF (V peak), total
-    /// (V rms) and per-line shielding (dB, against nothing fitted).
-    pub placed: VictimEmf,
+    /// (V rms) and per-line shielding (dB, against nothing fitted); `None` when the
+    /// option cannot be solved there (the placed victim would cut its sheet).
+    pub placed: Option<VictimEmf>,
 }
 
 impl Alternative {
@@ -291,7 +292,7 @@ fn alternative(
     })?;
     let rows = rows_of(&alone, solver, spec, progress)?;
     let base_lines: Vec<Vec<Line>> = scene.sources.iter().map(|s| s.lines.clone()).collect();
-    let placed = victim_emf(&alone, solver, &scene.victims[spec.victim], &base_lines)?;
+    let placed = victim_emf(&alone, solver, &scene.victims[spec.victim], &base_lines).ok();
     Ok(Alternative {
         shield: shield.map(str::to_string),
         totals: rows.iter().map(|r| r.total_rms).collect(),

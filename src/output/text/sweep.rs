@@ -144,10 +144,13 @@ const OPTION_LINES: usize = 6;
 /// and explained once.
 fn shield_options(out: &mut String, r: &crate::run::sweep::SweepResult) {
     use crate::run::warnings::{IDEAL_SHIELDING_DB, IDEAL_SHIELDING_NOTE};
-    let Some(first) = r.compare.first() else {
+    let Some(lines) = r
+        .compare
+        .iter()
+        .find_map(|a| a.placed.as_ref().map(|p| &p.lines))
+    else {
         return;
     };
-    let lines = &first.placed.lines;
     let shown = lines.len().min(OPTION_LINES);
     let _ = writeln!(
         out,
@@ -174,13 +177,21 @@ fn shield_options(out: &mut String, r: &crate::run::sweep::SweepResult) {
     let _ = writeln!(out);
     let mut ideal = false;
     for a in &r.compare {
+        let Some(placed) = &a.placed else {
+            let _ = writeln!(
+                out,
+                "    {:<width$}  cannot be solved at the placed position",
+                a.label()
+            );
+            continue;
+        };
         let mut row = format!(
             "    {:<width$}  {:>12}",
             a.label(),
-            si(a.placed.total_rms, "V")
+            si(placed.total_rms, "V")
         );
         for k in 0..shown {
-            let db = a.placed.shielding_db.get(k).copied().unwrap_or(0.0);
+            let db = placed.shielding_db.get(k).copied().unwrap_or(0.0);
             let mark = if db > IDEAL_SHIELDING_DB { "*" } else { " " };
             ideal |= db > IDEAL_SHIELDING_DB;
             let _ = write!(row, "  {db:>10.1} dB{mark}");

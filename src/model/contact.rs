@@ -27,10 +27,11 @@ pub fn touches(source: &Source, victim: &Victim) -> bool {
     let Some((sc, sr)) = source.conductors.bounding_sphere() else {
         return false;
     };
-    // The source's sphere already includes its largest wire radius.
+    // The source's sphere already includes its largest wire radius; a part in 1e9 of
+    // slack keeps rounding from clearing an edge that just touches.
     let near = |e: &Edge| {
         let (ec, er) = e.bounding_sphere();
-        (ec - sc).norm() <= sr + er + victim.wire_radius
+        (ec - sc).norm() <= (sr + er + victim.wire_radius) * (1.0 + 1e-9)
     };
     // Gap from a point to the nearest conductor surface, minus the victim's radius.
     let gap = |p: &Vec3| {

@@ -285,6 +285,28 @@ compare = ["none", "al-1mm", "al-15mm"]
             );
         }
     }
+    // 1.5 mm at 300 kHz passes 100 dB (docs/model.md §5.1, common practice): one
+    // warning for the sweep, naming the largest per-line shielding of any option.
+    let largest = cmp
+        .iter()
+        .flat_map(|a| a["rows"].as_array().unwrap())
+        .flat_map(|r| r["lines"].as_array().unwrap())
+        .map(|l| num(&l["shielding_db"]))
+        .fold(f64::NEG_INFINITY, f64::max);
+    assert!(largest > 100.0, "{largest}");
+    let err = String::from_utf8_lossy(&out.stderr);
+    let warned: Vec<&str> = err
+        .lines()
+        .filter(|l| l.starts_with("warning: sweep \"away\": the shielding"))
+        .collect();
+    assert_eq!(warned.len(), 1, "{err}");
+    assert!(
+        warned[0].contains(&format!(
+            "with al-15mm at distance = 1.000 mm reaches {largest:.1} dB"
+        )),
+        "{}",
+        warned[0]
+    );
     // The placed position: the same figures, and the text table prints them.
     let placed = |alt: usize, line: usize| num(&cmp[alt]["placed"]["lines"][line]["shielding_db"]);
     assert_eq!(placed(1, 0), shielding(1, 0, 0));
@@ -303,6 +325,16 @@ compare = ["none", "al-1mm", "al-15mm"]
         let cell = format!("{:.1} dB", placed(1, line));
         assert!(row.contains(&cell), "{cell} not in {row}");
     }
+    // Over 100 dB is marked, and the mark explained.
+    let thick = text
+        .lines()
+        .find(|l| l.trim_start().starts_with("al-15mm"))
+        .unwrap();
+    assert_eq!(placed(2, 1) > 100.0, thick.ends_with("dB*"), "{thick}");
+    assert!(
+        !row.contains('*') && text.contains("* over 100 dB"),
+        "{text}"
+    );
 }
 
 #[test]

@@ -104,10 +104,14 @@ enum Command {
     /// depth, with the source of each value.
     #[command(after_help = CAUTIONS)]
     Materials {
-        /// Give the skin depth at this frequency ("60 Hz", "1 MHz"); default: at 50 Hz,
-        /// 1 kHz, 100 kHz and 1 MHz.
+        /// Give the skin depth at this frequency ("60 Hz", "1 MHz"; a bare number is in
+        /// Hz); default: at 50 Hz, 1 kHz, 100 kHz and 1 MHz.
         #[arg(long, value_name = "F", allow_hyphen_values = true)]
         frequency: Option<String>,
+        /// Print one JSON document instead of the table (the skin depth only with
+        /// --frequency).
+        #[arg(long)]
+        json: bool,
     },
     /// The B phasor of every spectral line at given points.
     #[command(after_help = CAUTIONS)]
@@ -242,7 +246,7 @@ fn dispatch(command: &Command) -> Result<app::Outcome, strayflux::Error> {
             json,
             exact,
         } => app::probe_points(scene, at, points.as_deref(), *json, *exact),
-        Command::Materials { frequency } => app::materials(frequency.as_deref()),
+        Command::Materials { frequency, json } => app::materials(frequency.as_deref(), *json),
     }
 }
 

@@ -47,6 +47,7 @@ pub fn couple(
                 s.id, r.id
             ));
         }
+        warnings.extend(crate::run::warnings::couple_shielding_warning(r));
     }
     warnings.extend(reports.iter().filter_map(omitted_warning));
     // A victim with a limit but no converging total has no verdict: a gate fails it.

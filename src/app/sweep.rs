@@ -46,6 +46,9 @@ pub fn sweep(
         })
         .collect::<Result<_, SolveError>>()?;
     let mut warnings = scene.warnings.clone();
+    for r in &results {
+        warnings.extend(crate::run::warnings::sweep_warnings(&scene, r));
+    }
     let outputs = sweep_files(&scene, &results, out_dir, &mut warnings)?;
     let mut written = Vec::new();
     for (p, text) in &outputs {

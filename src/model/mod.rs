@@ -4,6 +4,7 @@
 //! ([`crate::coupling`], [`crate::shield`], [`crate::run`]) read them. Every quantity is
 //! in SI units (m, A, Hz, V, H, S/m) and every direction is a unit vector.
 
+pub mod contact;
 pub mod map;
 pub mod material;
 pub mod options;

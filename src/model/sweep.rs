@@ -60,9 +60,14 @@ pub struct SweepSpec {
 }
 
 impl SweepSpec {
-    /// The swept values: `steps` samples from `from` to `to`, endpoints exact.
+    /// The swept values: `steps` samples from `from` to `to`, endpoints exact. Sample k
+    /// of n − 1 intervals is from + (to − from)·k/(n − 1) (linear) or
+    /// from·10^(log10(to/from)·k/(n − 1)) (log), the product taken before the quotient
+    /// so that evenly divisible ranges give round values (5, 10, 15, 20 mm; 10 Hz,
+    /// 100 Hz, 1 kHz).
     pub fn values(&self) -> Vec<f64> {
         let n = self.steps;
+        let last = (n.max(2) - 1) as f64;
         (0..n)
             .map(|k| {
                 if k == 0 {
@@ -71,11 +76,11 @@ impl SweepSpec {
                 if k == n - 1 {
                     return self.to;
                 }
-                let t = k as f64 / (n - 1) as f64;
                 if self.log {
-                    (self.from.ln() + (self.to.ln() - self.from.ln()) * t).exp()
+                    let decades = (self.to / self.from).log10();
+                    self.from * 10f64.powf(decades * k as f64 / last)
                 } else {
-                    self.from + (self.to - self.from) * t
+                    self.from + (self.to - self.from) * k as f64 / last
                 }
             })
             .collect()

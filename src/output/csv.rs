@@ -24,8 +24,10 @@ pub fn value_in_unit(vary: &Vary, v: f64) -> f64 {
 
 /// The sweep as CSV: the swept value, every line's EMF (rms, V), with shields every
 /// line's shielding (dB), the total, the margin
-/// (dB, empty without a limit), for worst-case sweeps the worst axis, and with
-/// `compare` the total with each shield alternative.
+/// (dB, empty without a limit), for worst-case sweeps the worst axis, with
+/// `compare` the total with each shield alternative, and last `contact` (1 where the
+/// victim touches or crosses a source at that step, else 0). Values and EMFs are
+/// written with at most 10 significant digits ([`number`]).
 pub fn sweep_csv(result: &SweepResult) -> String {
     let first = result
         .rows
@@ -83,12 +85,13 @@ fn write_header(
             }
         }
     }
-    out.push('\n');
+    out.push_str(",contact\n");
 }
 
 /// Row `i` (step `r`): the swept value in its column's unit, `lines` EMFs (V rms),
 /// with `shielded` as many shieldings (dB), the total (V rms), the margin (dB),
-/// the worst axis (unit vector) and each compared alternative's total (V rms).
+/// the worst axis (unit vector), each compared alternative's total (V rms) and the
+/// contact mark (1 or 0).
 fn write_row(
     out: &mut String,
     result: &SweepResult,
@@ -97,20 +100,20 @@ fn write_row(
     lines: usize,
     shielded: bool,
 ) {
-    let _ = write!(out, "{:e}", value_in_unit(&result.spec.vary, r.value));
+    out.push_str(&number(value_in_unit(&result.spec.vary, r.value)));
     for k in 0..lines {
         let e = r
             .lines
             .get(k)
             .map_or(0.0, |l| l.1.norm() / std::f64::consts::SQRT_2);
-        let _ = write!(out, ",{e:e}");
+        let _ = write!(out, ",{}", number(e));
     }
     if shielded {
         for k in 0..lines {
             let _ = write!(out, ",{:.4}", r.shielding_db.get(k).copied().unwrap_or(0.0));
         }
     }
-    let _ = write!(out, ",{:e},", r.total_rms);
+    let _ = write!(out, ",{},", number(r.total_rms));
     if let Some(l) = result.limit {
         let m = crate::coupling::margin_db(l, r.total_rms);
         if m.is_finite() {
@@ -121,9 +124,31 @@ fn write_row(
         let _ = write!(out, ",{:.6},{:.6},{:.6}", a.x, a.y, a.z);
     }
     for a in &result.compare {
-        let _ = write!(out, ",{:e}", a.totals.get(i).copied().unwrap_or(f64::NAN));
+        let _ = write!(
+            out,
+            ",{}",
+            number(a.totals.get(i).copied().unwrap_or(f64::NAN))
+        );
     }
-    out.push('\n');
+    let _ = writeln!(out, ",{}", u8::from(!r.contact.is_empty()));
+}
+
+/// A CSV number: scientific notation with at most 10 significant digits, trailing zeros
+/// of the mantissa trimmed (`1.5e-2`, `5e1`, `5.89730837e1`), so that rounding noise in
+/// the last bits (`1.4999999999999998e1`) does not show; `NaN` and `inf` as Rust
+/// writes them.
+pub fn number(x: f64) -> String {
+    if !x.is_finite() {
+        return format!("{x}");
+    }
+    let s = format!("{x:.9e}");
+    let (mantissa, exponent) = s.split_once('e').unwrap_or((&s, "0"));
+    let mantissa = if mantissa.contains('.') {
+        mantissa.trim_end_matches('0').trim_end_matches('.')
+    } else {
+        mantissa
+    };
+    format!("{mantissa}e{exponent}")
 }
 
 fn trim_float(f: f64) -> String {

@@ -5,6 +5,7 @@ use crate::Scene;
 use crate::coupling::Total;
 use crate::run::couple::VictimReport;
 use crate::run::probe::ProbePoint;
+use crate::run::sweep::{Alternative, SweepResult, SweepRow};
 use serde::Serialize;
 
 #[derive(Serialize)]
@@ -217,22 +218,94 @@ struct SweepJson {
 struct CompareJson {
     shield: Option<String>,
     total_emf_v_rms: Vec<f64>,
+    rows: Vec<CompareRow>,
+    placed: Option<CompareRow>,
+}
+
+/// One step of a compared alternative, or the alternative at the placed position
+/// (`value` null).
+#[derive(Serialize)]
+struct CompareRow {
+    #[serde(skip_serializing_if = "Option::is_none")]
+    value: Option<f64>,
+    total_emf_v_rms: f64,
+    lines: Vec<RowLine>,
 }
 
 #[derive(Serialize)]
 struct SweepJsonRow {
     value: f64,
     total_emf_v_rms: f64,
+    margin_db: Option<f64>,
+    lines: Vec<RowLine>,
     #[serde(skip_serializing_if = "Option::is_none")]
     worst_axis: Option<[f64; 3]>,
     #[serde(skip_serializing_if = "Vec::is_empty")]
     shielding_db: Vec<f64>,
+    contact: bool,
+}
+
+#[derive(Serialize)]
+struct RowLine {
+    frequency_hz: f64,
+    emf_v_rms: f64,
+    shielding_db: f64,
+}
+
+/// Per-line EMF (V rms) and shielding (dB, 0 without shields) of `lines` (Hz, V peak).
+fn row_lines(lines: &[(f64, num_complex::Complex64)], shielding_db: &[f64]) -> Vec<RowLine> {
+    lines
+        .iter()
+        .enumerate()
+        .map(|(k, (f, e))| RowLine {
+            frequency_hz: *f,
+            emf_v_rms: e.norm() / std::f64::consts::SQRT_2,
+            shielding_db: shielding_db.get(k).copied().unwrap_or(0.0),
+        })
+        .collect()
+}
+
+/// One sweep row: the value in the sweep's unit, the total, the margin against `limit`
+/// (V rms; null without one or for a zero total), the lines and the contact mark.
+fn sweep_row(vary: &crate::model::Vary, limit: Option<f64>, row: &SweepRow) -> SweepJsonRow {
+    SweepJsonRow {
+        value: crate::output::csv::value_in_unit(vary, row.value),
+        total_emf_v_rms: row.total_rms,
+        margin_db: limit
+            .map(|l| crate::coupling::margin_db(l, row.total_rms))
+            .filter(|m| m.is_finite()),
+        lines: row_lines(&row.lines, &row.shielding_db),
+        worst_axis: row.worst_axis.map(|a| [a.x, a.y, a.z]),
+        shielding_db: row.shielding_db.clone(),
+        contact: !row.contact.is_empty(),
+    }
+}
+
+/// A compared alternative: its totals, every step's lines and the placed position.
+fn compare_json(vary: &crate::model::Vary, a: &Alternative) -> CompareJson {
+    CompareJson {
+        shield: a.shield.clone(),
+        total_emf_v_rms: a.totals.clone(),
+        rows: a
+            .rows
+            .iter()
+            .map(|r| CompareRow {
+                value: Some(crate::output::csv::value_in_unit(vary, r.value)),
+                total_emf_v_rms: r.total_rms,
+                lines: row_lines(&r.lines, &r.shielding_db),
+            })
+            .collect(),
+        placed: a.placed.as_ref().map(|p| CompareRow {
+            value: None,
+            total_emf_v_rms: p.total_rms,
+            lines: row_lines(&p.lines, &p.shielding_db),
+        }),
+    }
 }
 
 /// `sweep --json`: values in `unit` (m for distance, deg for angle, Hz for frequency).
-pub fn sweeps(results: &[crate::run::sweep::SweepResult]) -> String {
+pub fn sweeps(results: &[SweepResult]) -> String {
     use crate::model::Vary;
-    use crate::output::csv::value_in_unit;
     let sweeps = results
         .iter()
         .map(|r| {
@@ -249,23 +322,45 @@ pub fn sweeps(results: &[crate::run::sweep::SweepResult]) -> String {
                 rows: r
                     .rows
                     .iter()
-                    .map(|row| SweepJsonRow {
-                        value: value_in_unit(vary, row.value),
-                        total_emf_v_rms: row.total_rms,
-                        worst_axis: row.worst_axis.map(|a| [a.x, a.y, a.z]),
-                        shielding_db: row.shielding_db.clone(),
-                    })
+                    .map(|row| sweep_row(vary, r.limit, row))
                     .collect(),
-                compare: r
-                    .compare
-                    .iter()
-                    .map(|a| CompareJson {
-                        shield: a.shield.clone(),
-                        total_emf_v_rms: a.totals.clone(),
-                    })
-                    .collect(),
+                compare: r.compare.iter().map(|a| compare_json(vary, a)).collect(),
             }
         })
         .collect();
     to_string(&SweepDoc { sweeps })
+}
+
+#[derive(Serialize)]
+struct MaterialsDoc {
+    frequency_hz: Option<f64>,
+    materials: Vec<MaterialJson>,
+}
+
+#[derive(Serialize)]
+struct MaterialJson {
+    name: String,
+    conductivity_s_per_m: f64,
+    relative_permeability: f64,
+    skin_depth_m: Option<f64>,
+    source: &'static str,
+}
+
+/// `materials --json`: each material's σ (S/m), μr, source and skin depth (m) at
+/// `frequency` (Hz; the depth is null without one).
+pub fn materials(list: &[crate::model::Material], frequency: Option<f64>) -> String {
+    let materials = list
+        .iter()
+        .map(|m| MaterialJson {
+            name: m.name.clone(),
+            conductivity_s_per_m: m.conductivity,
+            relative_permeability: m.relative_permeability,
+            skin_depth_m: frequency.map(|f| m.skin_depth(f)),
+            source: m.source,
+        })
+        .collect();
+    to_string(&MaterialsDoc {
+        frequency_hz: frequency,
+        materials,
+    })
 }

@@ -7,6 +7,7 @@ pub mod map;
 pub mod orientation;
 pub mod probe;
 pub mod sweep;
+pub mod warnings;
 
 use crate::coupling::{PairModel, SourceAids};
 use crate::error::SolveError;

@@ -6,6 +6,7 @@ use super::orientation::{Orientation, search, small_loop_matrix};
 use crate::coupling::{PairModel, SourceCoupling, Total, emf_by_frequency};
 use crate::error::SolveError;
 use crate::field::Vec3;
+use crate::model::contact::touching_sources;
 use crate::model::sweep::victim_at;
 use crate::model::{Scene, Source, SweepSpec, Vary, Victim};
 use crate::spectrum::{Line, Tail};
@@ -26,6 +27,10 @@ pub struct SweepRow {
     /// With shields: 20·log10(|EMF without| / |EMF with|) of each distinct frequency,
     /// dB, in the order of `lines`; empty without shields.
     pub shielding_db: Vec<f64>,
+    /// Indices (into the scene's sources) of the sources the victim touches or crosses
+    /// at this step, as placed for the row (turned, with `orientation = "worst"`);
+    /// empty when clear. Such a row's EMF is dominated by the contact.
+    pub contact: Vec<usize>,
 }
 
 /// A victim's EMF for one placement.
@@ -68,6 +73,13 @@ pub struct Alternative {
     pub shield: Option<String>,
     /// Total rms EMF at every step, V.
     pub totals: Vec<f64>,
+    /// Every step with this alternative: per-line EMF (V peak), total (V rms) and
+    /// per-line shielding (dB, against nothing fitted; empty for no shield).
+    pub rows: Vec<SweepRow>,
+    /// At the placed position with the scene's own lines: per-line EMF (V peak), total
+    /// (V rms) and per-line shielding (dB, against nothing fitted); `None` when the
+    /// option cannot be solved there (the placed victim would cut its sheet).
+    pub placed: Option<VictimEmf>,
 }
 
 impl Alternative {
@@ -187,8 +199,12 @@ fn check_converges(scene: &Scene, spec: &SweepSpec) -> Result<(), SolveError> {
 }
 
 /// The total for the orientation search: NaN where a shield cannot be solved (a tilted
-/// victim that would cut a sheet), which the search never prefers.
+/// victim that would cut a sheet) or where the victim touches or crosses a source (its
+/// EMF would be the contact's), which the search never prefers.
 fn search_total(scene: &Scene, solver: &Solver, victim: &Victim, lines: &[Vec<Line>]) -> f64 {
+    if !touching_sources(scene, victim).is_empty() {
+        return f64::NAN;
+    }
     victim_emf(scene, solver, victim, lines).map_or(f64::NAN, |r| r.total_rms)
 }
 
@@ -213,19 +229,20 @@ fn row_at(
     models: Option<&[PairModel]>,
 ) -> Result<SweepRow, SolveError> {
     let step = step_at(scene, spec, x);
-    let (emf, worst_axis) = if spec.worst {
+    let (emf, worst_axis, contact) = if spec.worst {
         let o = worst(scene, solver, &step.victim, &step.lines);
         let turned = step.victim.facing(&o.normal);
         (
             victim_emf(scene, solver, &turned, &step.lines)?,
             Some(o.normal),
+            touching_sources(scene, &turned),
         )
     } else {
         let emf = match models {
             Some(m) => emf_from_models(scene, m, &step.victim, &step.lines),
             None => victim_emf(scene, solver, &step.victim, &step.lines)?,
         };
-        (emf, None)
+        (emf, None, touching_sources(scene, &step.victim))
     };
     Ok(SweepRow {
         value: x,
@@ -233,6 +250,7 @@ fn row_at(
         total_rms: emf.total_rms,
         worst_axis,
         shielding_db: emf.shielding_db,
+        contact,
     })
 }
 
@@ -256,20 +274,7 @@ pub fn run(
     let rows = rows_of(scene, solver, spec, progress)?;
     let mut compare = Vec::new();
     for alt in &spec.compare {
-        let alone = scene.with_only_sheet(alt.as_deref()).ok_or_else(|| {
-            SolveError::Alternative(format!(
-                "sweep \"{}\": shield {alt:?} cannot be fitted alone",
-                spec.id
-            ))
-        })?;
-        let totals = rows_of(&alone, solver, spec, progress)?
-            .iter()
-            .map(|r| r.total_rms)
-            .collect();
-        compare.push(Alternative {
-            shield: alt.clone(),
-            totals,
-        });
+        compare.push(alternative(scene, solver, spec, alt.as_deref(), progress)?);
     }
     let limit = victim.limit;
     let safe_value = match (spec.vary, limit) {
@@ -294,6 +299,32 @@ pub fn run(
         best_at_placed,
         placed_total,
         compare,
+    })
+}
+
+/// The sweep `spec` repeated with only the sheet `shield` fitted (`None`: no sheet),
+/// and that alternative at the placed position with the scene's own lines.
+fn alternative(
+    scene: &Scene,
+    solver: &Solver,
+    spec: &SweepSpec,
+    shield: Option<&str>,
+    progress: &(dyn Fn() + Sync),
+) -> Result<Alternative, SolveError> {
+    let alone = scene.with_only_sheet(shield).ok_or_else(|| {
+        SolveError::Alternative(format!(
+            "sweep \"{}\": shield {shield:?} cannot be fitted alone",
+            spec.id
+        ))
+    })?;
+    let rows = rows_of(&alone, solver, spec, progress)?;
+    let base_lines: Vec<Vec<Line>> = scene.sources.iter().map(|s| s.lines.clone()).collect();
+    let placed = victim_emf(&alone, solver, &scene.victims[spec.victim], &base_lines).ok();
+    Ok(Alternative {
+        shield: shield.map(str::to_string),
+        totals: rows.iter().map(|r| r.total_rms).collect(),
+        rows,
+        placed,
     })
 }
 

@@ -2,7 +2,7 @@
 //! shields outside their model's range.
 
 use crate::field::Vec3;
-use crate::geometry::Edge;
+use crate::model::contact::touching_sources;
 use crate::model::{Scene, Victim};
 
 /// A victim whose centre lies within the local bounding box of a winding's turns.
@@ -69,70 +69,12 @@ pub(super) fn shield_warnings(scene: &Scene) -> Vec<String> {
     out
 }
 
-/// A victim that touches or crosses a source's conductor.
+/// A victim that touches or crosses a source's conductor (the first such source).
 pub(super) fn contact_warning(scene: &Scene, v: &Victim) -> Option<String> {
-    for s in &scene.sources {
-        // Gap from a point to the nearest conductor surface, minus the victim's radius.
-        let gap = |p: &Vec3| {
-            let w = s
-                .conductors
-                .wires
-                .iter()
-                .map(|w| w.distance_to(p) - w.wire_radius);
-            let d = s
-                .conductors
-                .dipoles
-                .iter()
-                .map(|d| (p - d.position).norm() - d.radius);
-            w.chain(d).fold(f64::INFINITY, f64::min) - v.wire_radius
-        };
-        if v.edges.iter().any(|e| edge_touches(e, &gap)) {
-            return Some(format!(
-                "victim \"{}\" touches or crosses source \"{}\": the result is dominated by \
-                 the contact and depends on the wire radii",
-                v.id, s.id
-            ));
-        }
-    }
-    None
-}
-
-/// Whether `gap` (m, Lipschitz 1 in the point) falls to zero anywhere along `e`: the
-/// gap can fall by at most half an interval's length between its ends, so intervals
-/// that stay clear by more are done, and the rest are halved (to a depth of 40).
-fn edge_touches(e: &Edge, gap: &dyn Fn(&Vec3) -> f64) -> bool {
-    let len = e.length();
-    // A short edge far from every wire: the gap at its ends leaves no room to reach zero
-    // in between (it is at least (g0 + g1 − len)/2 there), so a finely sampled victim
-    // path costs two evaluations per edge.
-    let (g0, g1) = (gap(&e.point(0.0)), gap(&e.point(1.0)));
-    if g0 + g1 > 2.0 * len {
-        return false;
-    }
-    let mut stack: Vec<(f64, f64, f64, f64, u32)> = Vec::new();
-    let n = 64;
-    let mut prev = (0.0, gap(&e.point(0.0)));
-    for k in 1..=n {
-        let t = k as f64 / n as f64;
-        let g = gap(&e.point(t));
-        stack.push((prev.0, prev.1, t, g, 0));
-        prev = (t, g);
-    }
-    // A budget of gap evaluations keeps absurd geometry (a 1e200 m edge) from taking
-    // forever; within it, every crossing of a wire is found.
-    let mut budget = 4096;
-    while let Some((t0, g0, t1, g1, depth)) = stack.pop() {
-        if g0 <= 0.0 || g1 <= 0.0 {
-            return true;
-        }
-        if g0.min(g1) > 0.5 * len * (t1 - t0) || depth >= 40 || budget == 0 {
-            continue;
-        }
-        budget -= 1;
-        let tm = 0.5 * (t0 + t1);
-        let gm = gap(&e.point(tm));
-        stack.push((t0, g0, tm, gm, depth + 1));
-        stack.push((tm, gm, t1, g1, depth + 1));
-    }
-    false
+    let s = &scene.sources[*touching_sources(scene, v).first()?];
+    Some(format!(
+        "victim \"{}\" touches or crosses source \"{}\": the result is dominated by the \
+         contact and depends on the wire radii",
+        v.id, s.id
+    ))
 }

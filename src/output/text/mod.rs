@@ -5,6 +5,7 @@ use crate::coupling::Total;
 use crate::field::Vec3;
 use crate::run::couple::VictimReport;
 use crate::run::probe::ProbePoint;
+use crate::run::warnings::{IDEAL_SHIELDING_DB, IDEAL_SHIELDING_NOTE};
 use crate::units::{format_area, format_si};
 use std::fmt::Write;
 
@@ -43,6 +44,7 @@ pub fn couple(scene: &Scene, reports: &[VictimReport]) -> String {
             format_area(v.area, 4)
         );
         let shielded = crate::shield::scene_is_shielded(scene);
+        let mut ideal = false;
         for s in &r.sources {
             let _ = writeln!(
                 out,
@@ -73,9 +75,16 @@ pub fn couple(scene: &Scene, reports: &[VictimReport]) -> String {
                 );
                 if shielded {
                     let _ = write!(out, "  {:>7.1} dB", l.shielding_db);
+                    if l.shielding_db > IDEAL_SHIELDING_DB {
+                        ideal = true;
+                        out.push_str(" *");
+                    }
                 }
                 let _ = writeln!(out);
             }
+        }
+        if ideal {
+            let _ = writeln!(out, "  * over 100 dB: {IDEAL_SHIELDING_NOTE}");
         }
         total_lines(&mut out, r);
         if let (Some(load), Some(r_load)) = (&r.load, v.load) {

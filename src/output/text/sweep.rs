@@ -37,7 +37,9 @@ pub fn sweeps(
             }
         );
         sweep_verdict(&mut out, r);
+        contact_note(&mut out, r);
         placed_null(&mut out, r);
+        shield_options(&mut out, r);
     }
     if !written.is_empty() {
         let _ = writeln!(out, "\nwrote {}", written.join(", "));
@@ -117,5 +119,86 @@ fn placed_null(out: &mut String, r: &crate::run::sweep::SweepResult) {
                 si(r.placed_total, "V"),
             )
         };
+    }
+}
+
+/// `sweep`: how many steps the victim touches or crosses a source in (none: nothing).
+fn contact_note(out: &mut String, r: &crate::run::sweep::SweepResult) {
+    let n = r.rows.iter().filter(|row| !row.contact.is_empty()).count();
+    if n > 0 {
+        let _ = writeln!(
+            out,
+            "  {n} of {} steps put the victim in contact with a source (contact = 1 in the \
+             CSV): their EMF is the contact's, not a coupling",
+            r.rows.len()
+        );
+    }
+}
+
+/// Most line columns the shield-options table prints; `sweep --json` has every line.
+const OPTION_LINES: usize = 6;
+
+/// `sweep` with `compare`: per option at the placed position with the scene's own
+/// lines, the total and each line's shielding against nothing fitted; values over
+/// [`IDEAL_SHIELDING_DB`](crate::run::warnings::IDEAL_SHIELDING_DB) are marked `*`
+/// and explained once.
+fn shield_options(out: &mut String, r: &crate::run::sweep::SweepResult) {
+    use crate::run::warnings::{IDEAL_SHIELDING_DB, IDEAL_SHIELDING_NOTE};
+    let Some(lines) = r
+        .compare
+        .iter()
+        .find_map(|a| a.placed.as_ref().map(|p| &p.lines))
+    else {
+        return;
+    };
+    let shown = lines.len().min(OPTION_LINES);
+    let _ = writeln!(
+        out,
+        "  shield options at the placed position (the scene's own lines; shielding against \
+         nothing fitted{}):",
+        if lines.len() > shown {
+            format!(
+                "; the first {shown} of {} lines, all in sweep --json",
+                lines.len()
+            )
+        } else {
+            String::new()
+        }
+    );
+    let width = r
+        .compare
+        .iter()
+        .map(|a| a.label().len())
+        .fold(9, usize::max);
+    let _ = write!(out, "    {:<width$}  {:>12}", "option", "total rms");
+    for (f, _) in &lines[..shown] {
+        let _ = write!(out, "  {:>13}", si(*f, "Hz"));
+    }
+    let _ = writeln!(out);
+    let mut ideal = false;
+    for a in &r.compare {
+        let Some(placed) = &a.placed else {
+            let _ = writeln!(
+                out,
+                "    {:<width$}  cannot be solved at the placed position",
+                a.label()
+            );
+            continue;
+        };
+        let mut row = format!(
+            "    {:<width$}  {:>12}",
+            a.label(),
+            si(placed.total_rms, "V")
+        );
+        for k in 0..shown {
+            let db = placed.shielding_db.get(k).copied().unwrap_or(0.0);
+            let mark = if db > IDEAL_SHIELDING_DB { "*" } else { " " };
+            ideal |= db > IDEAL_SHIELDING_DB;
+            let _ = write!(row, "  {db:>10.1} dB{mark}");
+        }
+        let _ = writeln!(out, "{}", row.trim_end());
+    }
+    if ideal {
+        let _ = writeln!(out, "    * over 100 dB: {IDEAL_SHIELDING_NOTE}");
     }
 }

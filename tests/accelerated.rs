@@ -362,7 +362,7 @@ fn command_line_probe_and_sweep_agree_with_exact_within_the_tolerance() {
         &scene,
         "[solver]\ntolerance = 1e-6\n[[source]]\nid = \"coil\"\nkind = \"helix\"\n\
          radius = \"5 mm\"\nlength = \"8 mm\"\nturns = 12\n\
-         current = { waveform = \"square\", peak = \"1 A\", frequency = \"50 kHz\", harmonics = 3 }\n\
+         current = { waveform = \"square\", peak = \"1 A\", frequency = \"50 kHz\", rise = \"200 ns\", harmonics = 3 }\n\
          [[victim]]\nid = \"v\"\nkind = \"loop\"\nradius = \"3 mm\"\n\
          position = [\"30 mm\", \"0 mm\", \"0 mm\"]\n\
          [[sweep]]\nid = \"s\"\nvictim = \"v\"\nvary = \"distance\"\nalong = [1, 0, 0]\n\

@@ -101,7 +101,7 @@ fn shielded_outputs_are_byte_identical_for_any_thread_count() {
 id = "coil"
 kind = "loop"
 radius = "6 mm"
-current = { waveform = "square", peak = "1 A", frequency = "20 kHz", harmonics = 5 }
+current = { waveform = "square", peak = "1 A", frequency = "20 kHz", rise = "500 ns", harmonics = 5 }
 [[victim]]
 id = "v"
 kind = "rectangle"

@@ -260,7 +260,7 @@ fn plan_for(
 /// The scattered flux model of `conductors` (on `source_side`) through the closed path
 /// `edges` (on `victim_side`, sampled as `victim_points`), or why it cannot be built.
 /// `shared` rounds the plan up so that nearby placements share it (an orientation
-/// search; see [`plan_for`]).
+/// search).
 #[allow(clippy::too_many_arguments)]
 pub fn flux_model(
     barrier: &Barrier,

@@ -1,6 +1,7 @@
-//! Whole-command timings of the shield demo, run in-process a few times each (a shielded
-//! sweep takes seconds, too long for criterion's samples): `cargo bench --bench
-//! commands`. It prints, for `scenes/shield-options.toml`:
+//! Whole-command timings of the shield demo, each a run of the `strayflux` binary (so
+//! nothing is cached between runs, as for a user), a few times each (a shielded sweep
+//! takes seconds, too long for criterion's samples): `cargo bench --bench commands`. It
+//! prints, for `scenes/shield-options.toml`:
 //!
 //! * `couple`: one shielded coupling of the demo (4400-segment helix, 1 mm aluminium);
 //! * `sweep`: its 61-step frequency sweep with four `compare` options, the safe-value
@@ -44,14 +45,11 @@ fn main() {
         .and_then(|r| r.parse().ok())
         .unwrap_or(3);
     let out = dir.join("out");
-    let quiet = |_: usize, _: usize| {};
-    let couple = time(runs, || {
-        strayflux::app::couple(&full, false, false, None, &quiet).unwrap();
-    });
+    let couple = time(runs, || command(&["couple", full.to_str().unwrap()]));
     report("couple", &couple);
     let sweep_of = |p: &Path| {
         time(runs, || {
-            strayflux::app::sweep(p, None, &out, false, false, &quiet).unwrap();
+            command(&["sweep", p.to_str().unwrap(), "--out", out.to_str().unwrap()])
         })
     };
     let sweep = sweep_of(&full);
@@ -62,6 +60,17 @@ fn main() {
         "sweep / couple (medians): {:.1}",
         median(&sweep) / median(&couple)
     );
+}
+
+/// Runs the release binary with `args`; panics unless it succeeds.
+fn command(args: &[&str]) {
+    let status = std::process::Command::new(env!("CARGO_BIN_EXE_strayflux"))
+        .args(args)
+        .stdout(std::process::Stdio::null())
+        .stderr(std::process::Stdio::null())
+        .status()
+        .unwrap();
+    assert!(status.success(), "strayflux {args:?} failed");
 }
 
 /// Wall times of `runs` calls of `f`, s.

@@ -159,7 +159,7 @@ fn choke_thermocouple_sweeps() {
 /// options: about 18 s in a release build on the 2-core development machine, too slow
 /// for every `cargo test`.
 #[test]
-#[ignore = "about 15-20 s (shielded frequency sweep); .ci/run runs it with cargo test --test snapshots -- --ignored"]
+#[ignore = "about 10 s (shielded frequency sweep); .ci/run runs it with cargo test --test snapshots -- --ignored"]
 fn shield_options_sweeps() {
     sweeps("shield-options");
 }

@@ -49,7 +49,10 @@ impl SpectrumPlot<'_> {
             (Some(t), Some(l)) => {
                 let margin = self
                     .margin_db
-                    .map_or(String::new(), |m| format!(", margin {m:+.1} dB"));
+                    .filter(|m| m.is_finite())
+                    .map_or(String::new(), |m| {
+                        format!(", margin {} dB", crate::output::text::signed(m, 1))
+                    });
                 let (word, colour) = if t > l {
                     ("OVER LIMIT", LIMIT)
                 } else {

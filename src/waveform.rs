@@ -309,6 +309,8 @@ pub struct Series {
     /// The mean square over a period of the current's time derivative, A²/s² (every
     /// line, listed or not); infinite when the shape has a jump.
     pub slope_mean_square: f64,
+    /// The rms of the whole waveform (every line, listed or not), A.
+    pub rms: f64,
 }
 
 /// The spectral lines of `shape` repeating at `frequency` Hz, scaled to `amplitude`,
@@ -334,6 +336,7 @@ pub fn series(
         lines,
         capped,
         slope_mean_square: (scale * frequency).powi(2) * shape.slope_mean_square(),
+        rms: scale * shape.rms(),
     }
 }
 

@@ -99,9 +99,12 @@ fn parse_printed(number: &str, unit_with_prefix: &str, unit: &str) -> f64 {
 #[test]
 fn calibrate_scales_each_source_alone_to_the_given_rms_field() {
     // docs/scene-reference.md: `calibrate = { at, field }` sets the current so that the
-    // rms of |B| at `at` equals `field`, i.e. √(Σ_k |B_k|²/2) over the source's lines
-    // (the rms of a sum of distinct-frequency sinusoids is the root-sum-square of their
-    // rms values: Parseval). The waveform's shape is kept: the triangle's lines stay in
+    // rms of |B| at `at` equals `field` for the whole waveform, listed lines or not. B is
+    // proportional to the current, so the 5 listed lines carry the share of the field
+    // that their rms is of the triangle's: √(Σ_{n=1,3..9} (8/(π²n²))²/2) against 1/√3
+    // (the rms of a ramp of peak 1, from memory; the rms of a sum of distinct-frequency
+    // sinusoids is the root-sum-square of their rms values: Parseval). The waveform's
+    // shape is kept: the triangle's lines stay in
     // the ratios 1/n² with their signs (8Î/(n²π²), Kreyszig, "Advanced Engineering
     // Mathematics", 10th ed., §11.1–11.2; from memory). It considers the source alone,
     // so the second source's field at the point does not count.
@@ -151,10 +154,16 @@ axis = [1, 0, 0]
         }
     }
     assert_eq!(lines.len(), 6, "five triangle lines and the ring's");
-    let e = rel(coil2.sqrt(), 12e-6);
+    let listed: f64 = [1.0f64, 3.0, 5.0, 7.0, 9.0]
+        .iter()
+        .map(|n| (8.0 / (std::f64::consts::PI.powi(2) * n * n)).powi(2) / 2.0)
+        .sum::<f64>()
+        .sqrt();
+    let share = listed * 3f64.sqrt();
+    let e = rel(coil2.sqrt(), 12e-6 * share);
     eprintln!(
-        "calibrate round trip: √Σ b_rms² of the helix lines {:.12e} T vs 12 µT (rel {e:.2e}); \
-         the ring adds {:.3e} T at 1 kHz there",
+        "calibrate round trip: √Σ b_rms² of the helix lines {:.12e} T vs 12 µT \
+         x the listed share {share:.9} (rel {e:.2e}); the ring adds {:.3e} T at 1 kHz there",
         coil2.sqrt(),
         ring2.sqrt()
     );

@@ -219,3 +219,22 @@ fn unlisted_lines_that_matter_are_warned_with_their_share() {
     let out = run(&["couple", quiet.to_str().unwrap()]);
     assert!(!String::from_utf8_lossy(&out.stderr).contains("lines above them"));
 }
+
+#[test]
+fn calibrate_scales_the_whole_waveform_not_only_its_listed_lines() {
+    // A triangle of peak Î listing 3 lines, calibrated to 2 µT rms on the axis of a
+    // 10 mm loop, 30 mm up. On the axis B = μ0 a² / (2 (a² + z²)^{3/2}) per ampere
+    // (Biot–Savart, any electromagnetism text, e.g. Griffiths §5.2 example 5.6), and the
+    // triangle's rms is Î/√3 (from memory; it is the rms of a linear ramp). Its
+    // fundamental is 8Î/π² (Kreyszig §11.1, from memory), which gives Î back.
+    let text = "[[source]]\nid = \"drive\"\nkind = \"loop\"\nradius = \"10 mm\"\n\
+                current = { waveform = \"triangle\", frequency = \"20 kHz\", harmonics = 3 }\n\
+                calibrate = { at = [\"0 mm\", \"0 mm\", \"30 mm\"], field = \"2 uT\" }\n";
+    let s = Scene::parse("c.toml", text).unwrap_or_else(|e| panic!("{e}"));
+    let mu0 = 4e-7 * PI;
+    let (a, z) = (0.01_f64, 0.03_f64);
+    let b_per_amp = mu0 * a * a / (2.0 * (a * a + z * z).powf(1.5));
+    let peak = s.sources[0].lines[0].current.norm() * PI * PI / 8.0;
+    let b_rms = b_per_amp * peak / 3f64.sqrt();
+    assert!(rel(b_rms, 2e-6) < 1e-6, "calibrated to {b_rms} T rms");
+}

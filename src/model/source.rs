@@ -100,6 +100,8 @@ pub struct Source {
     pub lines: Vec<Line>,
     /// What `lines` leave out of the waveform's series, in closed form.
     pub tail: Tail,
+    /// The rms of the whole current (every line, listed or not), A.
+    pub current_rms: f64,
     /// With `calibrate`: the point (m) and the rms |B| (T) the current was scaled to.
     pub calibration: Option<(Vec3, f64)>,
 }

@@ -46,6 +46,8 @@ pub struct Current {
     pub lines: Vec<Line>,
     /// The rest of the waveform's series above the listed lines.
     pub tail: Tail,
+    /// The rms of the whole current (every line, listed or not), A.
+    pub rms: f64,
 }
 
 /// Reads a `current` table into its spectral lines (peak phasors), ascending frequency,
@@ -62,6 +64,7 @@ pub fn parse_current(
         let out = parse_lines(&lines)?;
         table.finish(&[], "a current given as `lines` (remove the other keys)")?;
         return Ok(Current {
+            rms: lines_rms(&out),
             lines: out,
             tail: Tail::None,
         });
@@ -84,8 +87,10 @@ pub fn parse_current(
             h.count(1)?;
         }
         table.finish(CURRENT_KEYS, "a sine current")?;
+        let line = Line::new(frequency, amplitude.sine_peak(), phase);
         return Ok(Current {
-            lines: vec![Line::new(frequency, amplitude.sine_peak(), phase)],
+            rms: lines_rms(&[line]),
+            lines: vec![line],
             tail: Tail::None,
         });
     }
@@ -104,7 +109,13 @@ pub fn parse_current(
     Ok(Current {
         lines: series.lines,
         tail,
+        rms: series.rms,
     })
+}
+
+/// The rms of a sum of lines at distinct frequencies, A: √(Σ|I|²/2).
+fn lines_rms(lines: &[Line]) -> f64 {
+    (lines.iter().map(|l| l.current.norm_sqr()).sum::<f64>() / 2.0).sqrt()
 }
 
 /// The located note for a waveform with an ideal edge, saying which key gives the

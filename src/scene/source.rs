@@ -104,11 +104,12 @@ pub(crate) fn parse(
     apply_turns(t, kind, &mut conductors)?;
     let calibrate = t.get("calibrate");
     let current = parse_lines(t, &id, ctx, calibrate.is_none(), warnings)?;
-    let (mut lines, mut tail) = (current.lines, current.tail);
+    let (mut lines, mut tail, mut current_rms) = (current.lines, current.tail, current.rms);
     let calibration = match calibrate {
         Some(c) => {
-            let (at, field, k) = calibrate_lines(&c, &conductors, &mut lines)?;
+            let (at, field, k) = calibrate_lines(&c, &conductors, &mut lines, current_rms)?;
             tail = tail.scaled(k, 1.0);
+            current_rms *= k;
             Some((at, field))
         }
         None => None,
@@ -123,6 +124,7 @@ pub(crate) fn parse(
         conductors,
         lines,
         tail,
+        current_rms,
         calibration,
     })
 }
@@ -272,12 +274,14 @@ fn check_finite(t: &Table<'_, '_>, lines: &[crate::spectrum::Line]) -> Result<()
 }
 
 /// `calibrate = { at, field }`: scales `lines` so the rms of |B| at `at` equals `field`
-/// (rms over all lines: √(Σ|B_k|²/2)). Returns the point (m), the field (T) and the
-/// factor the currents were multiplied by.
+/// (rms over every line of the waveform, listed or not: |B per ampere| times the
+/// current's rms `i_rms`, A). Returns the point (m), the field (T) and the factor the
+/// currents were multiplied by.
 fn calibrate_lines(
     v: &Value<'_, '_>,
     conductors: &Conductors,
     lines: &mut [crate::spectrum::Line],
+    i_rms: f64,
 ) -> Result<(Vec3, f64, f64), InputError> {
     let t = v.table()?;
     let at_v = t.require("at", "the point [x, y, z] where the field is known")?;
@@ -294,7 +298,6 @@ fn calibrate_lines(
         return Err(at_v.error("the calibration point lies on the source's conductor"));
     }
     let b = conductors.b_per_amp(&at).norm();
-    let i_rms = (lines.iter().map(|l| l.current.norm_sqr()).sum::<f64>() / 2.0).sqrt();
     if !(b > 0.0 && i_rms > 0.0) {
         return Err(at_v.error("the source makes no field at this point: choose another"));
     }

@@ -78,10 +78,10 @@ fn check_source(out: &mut String, s: &crate::model::Source) {
         );
     }
     if let Some((at, field)) = s.calibration {
-        let i_rms = (s.lines.iter().map(|l| l.current.norm_sqr()).sum::<f64>() / 2.0).sqrt();
+        let i_rms = s.current_rms;
         let _ = writeln!(
             out,
-            "  current set by calibrate: {} rms in all lines gives |B| = {} rms at {}",
+            "  current set by calibrate: {} rms (the whole waveform) gives |B| = {} rms at {}",
             si(i_rms, "A"),
             si(field, "T"),
             fmt_point(&at)

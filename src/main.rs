@@ -7,18 +7,7 @@ use std::io::Write;
 use std::path::PathBuf;
 use std::process::ExitCode;
 use strayflux::app;
-
-const CAUTIONS: &str = "\
-Cautions: results are estimates for design, not compliance evidence; confirm them by
-measurement. The model is magnetic quasi-static (valid well inside λ/2π of the source),
-treats conductors as thin filaments (no skin or proximity effect in the windings) and
-does not model ferromagnetic cores: use a dipole or measured data for cored parts.
-Shield sheets are infinite, continuous and linear: a small, slotted or perforated sheet
-does less, and the permeability of steel and mu-metal varies with field level,
-frequency and treatment. Enclosures are an equal-volume-sphere estimate; seams, lids
-and holes make a real box worse.
-Sources of interest often run from mains or carry large currents: follow local codes
-and licensed practice when you measure them.";
+use strayflux::app::CAUTIONS;
 
 /// Magnetic coupling from a source (transformer, inductor, coil, cable pair) into a
 /// victim loop: mutual inductance and induced EMF at every spectral line.
@@ -99,6 +88,18 @@ enum Command {
         /// multipole expansion where that is proven within the tolerance and cheaper.
         #[arg(long)]
         exact: bool,
+    },
+    /// Write DIR/report.html: one self-contained page for a design review (the scene
+    /// drawn, every victim's margin, lines and spectrum, every sweep, shield options,
+    /// warnings and cautions), ready to open in a browser or print on A4. The date is
+    /// today's (UTC), or SOURCE_DATE_EPOCH (seconds since 1970) when that is set.
+    #[command(after_help = CAUTIONS)]
+    Report {
+        /// Scene file (TOML).
+        scene: PathBuf,
+        /// Folder for report.html (created if missing).
+        #[arg(long, value_name = "DIR", default_value = "out")]
+        out: PathBuf,
     },
     /// The built-in shield materials: conductivity, relative permeability and skin
     /// depth, with the source of each value.
@@ -246,6 +247,9 @@ fn dispatch(command: &Command) -> Result<app::Outcome, strayflux::Error> {
             json,
             exact,
         } => app::probe_points(scene, at, points.as_deref(), *json, *exact),
+        Command::Report { scene, out } => {
+            with_progress(|progress| app::report(scene, out, progress))
+        }
         Command::Materials { frequency, json } => app::materials(frequency.as_deref(), *json),
     }
 }

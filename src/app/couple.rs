@@ -26,30 +26,9 @@ pub fn couple(
         files::ensure_dir(dir)?;
     }
     let solver = Solver::for_scene(&scene);
-    let count = scene.victims.len();
-    progress(0, count);
-    let reports: Vec<VictimReport> = scene
-        .victims
-        .iter()
-        .enumerate()
-        .map(|(i, v)| {
-            let r = couple_victim(&scene, &solver, v);
-            progress(i + 1, count);
-            r
-        })
-        .collect::<Result<_, SolveError>>()?;
+    let reports = couple_all(&scene, &solver, progress)?;
     let mut warnings = scene.warnings.clone();
-    for r in &reports {
-        for s in r.sources.iter().filter(|s| !s.converged) {
-            warnings.push(format!(
-                "the flux of source \"{}\" through victim \"{}\" did not reach the tolerance \
-                 (a conductor passes very close to the victim's path)",
-                s.id, r.id
-            ));
-        }
-        warnings.extend(crate::run::warnings::couple_shielding_warning(r));
-    }
-    warnings.extend(reports.iter().filter_map(omitted_warning));
+    warnings.extend(couple_warnings(&reports));
     // A victim with a limit but no converging total has no verdict: a gate fails it.
     let over = reports
         .iter()
@@ -57,19 +36,7 @@ pub fn couple(
     if let Some(dir) = plot_dir {
         let mut files = Vec::new();
         for r in &reports {
-            let lines: Vec<(f64, f64)> = r
-                .by_frequency
-                .iter()
-                .map(|(f, e)| (*f, e.norm() / std::f64::consts::SQRT_2))
-                .collect();
-            let spectrum = plot::SpectrumPlot {
-                victim_id: &r.id,
-                lines: &lines,
-                total: r.total_rms(),
-                limit: r.limit,
-                margin_db: r.margin_db(),
-            };
-            match plot::spectrum_svg(&spectrum) {
+            match spectrum_plot(r) {
                 Ok(svg) => files.push((dir.join(format!("{}-spectrum.svg", r.id)), svg)),
                 Err(why) => warnings.push(why),
             }
@@ -87,6 +54,63 @@ pub fn couple(
         stdout,
         warnings,
         exit: if strict && over { 3 } else { 0 },
+    })
+}
+
+/// Couples every source into every victim of `scene`, in scene order; `progress` is
+/// called with (victims done, victims). Used by `couple` and `report`.
+pub(crate) fn couple_all(
+    scene: &Scene,
+    solver: &Solver,
+    progress: &(dyn Fn(usize, usize) + Sync),
+) -> Result<Vec<VictimReport>, SolveError> {
+    let count = scene.victims.len();
+    progress(0, count);
+    scene
+        .victims
+        .iter()
+        .enumerate()
+        .map(|(i, v)| {
+            let r = couple_victim(scene, solver, v);
+            progress(i + 1, count);
+            r
+        })
+        .collect()
+}
+
+/// The warnings of a finished coupling, after the scene's own: per victim a flux that
+/// missed the tolerance and shielding beyond the ideal-sheet figure, then every
+/// victim whose unlisted lines add more than [`OMITTED_SHARE_WARN_DB`].
+pub(crate) fn couple_warnings(reports: &[VictimReport]) -> Vec<String> {
+    let mut warnings = Vec::new();
+    for r in reports {
+        for s in r.sources.iter().filter(|s| !s.converged) {
+            warnings.push(format!(
+                "the flux of source \"{}\" through victim \"{}\" did not reach the tolerance \
+                 (a conductor passes very close to the victim's path)",
+                s.id, r.id
+            ));
+        }
+        warnings.extend(crate::run::warnings::couple_shielding_warning(r));
+    }
+    warnings.extend(reports.iter().filter_map(omitted_warning));
+    warnings
+}
+
+/// The EMF spectrum plot of one victim (SVG text), as `couple --plot` writes it; the
+/// reason as a warning when it cannot be drawn.
+pub(crate) fn spectrum_plot(r: &VictimReport) -> Result<String, String> {
+    let lines: Vec<(f64, f64)> = r
+        .by_frequency
+        .iter()
+        .map(|(f, e)| (*f, e.norm() / std::f64::consts::SQRT_2))
+        .collect();
+    plot::spectrum_svg(&plot::SpectrumPlot {
+        victim_id: &r.id,
+        lines: &lines,
+        total: r.total_rms(),
+        limit: r.limit,
+        margin_db: r.margin_db(),
     })
 }
 

@@ -26,29 +26,9 @@ pub fn sweep(
     let solver = Solver::new(&scene, SolverOptions::for_scene(&scene).exact_if(exact));
     let chosen = choose_sweeps(&scene, path, only)?;
     files::ensure_dir(out_dir)?;
-    // Every step of every alternative, plus one for each sweep's closing work (the
-    // safe-distance bisection and the orientation search at the placed position).
-    let total_steps: usize = chosen
-        .iter()
-        .map(|s| s.steps * (1 + s.compare.len()) + 1)
-        .sum();
-    let done = std::sync::atomic::AtomicUsize::new(0);
-    let tick = || {
-        let n = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
-        progress(n, total_steps);
-    };
-    let results: Vec<SweepResult> = chosen
-        .iter()
-        .map(|s| {
-            let r = crate::run::sweep::run(&scene, &solver, s, &tick);
-            tick();
-            r
-        })
-        .collect::<Result<_, SolveError>>()?;
+    let (results, sweep_warnings) = run_sweeps(&scene, &solver, &chosen, progress)?;
     let mut warnings = scene.warnings.clone();
-    for r in &results {
-        warnings.extend(crate::run::warnings::sweep_warnings(&scene, r));
-    }
+    warnings.extend(sweep_warnings);
     let outputs = sweep_files(&scene, &results, out_dir, &mut warnings)?;
     let mut written = Vec::new();
     for (p, text) in &outputs {
@@ -66,6 +46,47 @@ pub fn sweep(
         warnings,
         exit: 0,
     })
+}
+
+/// Runs the `chosen` sweeps of `scene` in order, with their warnings (contact,
+/// shielding over the ideal-sheet figure; not the scene's own). `progress` is called
+/// with (steps done, steps) once per finished step. Used by `sweep` and `report`.
+pub(crate) fn run_sweeps(
+    scene: &Scene,
+    solver: &Solver,
+    chosen: &[&SweepSpec],
+    progress: &(dyn Fn(usize, usize) + Sync),
+) -> Result<(Vec<SweepResult>, Vec<String>), SolveError> {
+    // Every step of every alternative, plus one for each sweep's closing work (the
+    // safe-distance bisection and the orientation search at the placed position).
+    let total_steps: usize = chosen
+        .iter()
+        .map(|s| s.steps * (1 + s.compare.len()) + 1)
+        .sum();
+    let done = std::sync::atomic::AtomicUsize::new(0);
+    let tick = || {
+        let n = done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1;
+        progress(n, total_steps);
+    };
+    let results: Vec<SweepResult> = chosen
+        .iter()
+        .map(|s| {
+            let r = crate::run::sweep::run(scene, solver, s, &tick);
+            tick();
+            r
+        })
+        .collect::<Result<_, SolveError>>()?;
+    let warnings = results
+        .iter()
+        .flat_map(|r| crate::run::warnings::sweep_warnings(scene, r))
+        .collect();
+    Ok((results, warnings))
+}
+
+/// The plot of one finished sweep (SVG text), as `sweep` writes it; the reason as a
+/// warning naming the sweep when it cannot be drawn.
+pub(crate) fn sweep_plot(scene: &Scene, r: &SweepResult) -> Result<String, String> {
+    plot::sweep_svg(r, scene).map_err(|why| format!("sweep \"{}\": {why}", r.spec.id))
 }
 
 /// The scene's sweeps that `only` (an id) selects, or all of them; an error when none.
@@ -116,9 +137,9 @@ fn sweep_files(
             out_dir.join(format!("{}.csv", r.spec.id)),
             csv::sweep_csv(r),
         ));
-        match plot::sweep_svg(r, scene) {
+        match sweep_plot(scene, r) {
             Ok(svg) => outputs.push((out_dir.join(format!("{}.svg", r.spec.id)), svg)),
-            Err(why) => warnings.push(format!("sweep \"{}\": {why}", r.spec.id)),
+            Err(why) => warnings.push(why),
         }
     }
     let vtp = crate::output::vtk::scene_polydata(scene, 0.005).map_err(Error::Run)?;

@@ -4,6 +4,7 @@
 pub mod csv;
 pub mod files;
 pub mod json;
+pub mod page;
 pub mod plot;
 pub mod quicklook;
 pub mod report;

@@ -212,7 +212,7 @@ fn fmt_point(p: &crate::field::Vec3) -> String {
 }
 
 /// A unit direction as `[x, y, z]` to three decimals, without "-0.000".
-fn fmt_dir(d: &Vec3) -> String {
+pub(crate) fn fmt_dir(d: &Vec3) -> String {
     let c = |x: f64| if x.abs() < 5e-4 { 0.0 } else { x };
     format!("[{:.3}, {:.3}, {:.3}]", c(d.x), c(d.y), c(d.z))
 }

@@ -19,7 +19,8 @@ pub const SOURCE_DATE_EPOCH: &str = "SOURCE_DATE_EPOCH";
 /// `report SCENE [--out DIR]`: couple every victim and run every sweep as `couple` and
 /// `sweep` do, and write `DIR/report.html`: one page with the scene drawn, the summary
 /// of margins, each victim's lines and spectrum, each sweep's plot and safe value,
-/// shield options, every warning and the cautions. Dated now (UTC), or at
+/// shield options, every warning and the cautions. A sweep that cannot run is named on
+/// the page and among the warnings with its reason. Dated now (UTC), or at
 /// [`SOURCE_DATE_EPOCH`] when that is set. `progress` is called with (done, total),
 /// first over the victims, then over the sweeps' steps.
 pub fn report(
@@ -41,11 +42,24 @@ pub fn report(
     let victims = couple_all(&scene, &Solver::for_scene(&scene), progress)?;
     // As `sweep` runs (without --exact): a solver of its own, the caches fresh.
     let sweep_solver = Solver::new(&scene, SolverOptions::for_scene(&scene));
-    let chosen: Vec<&SweepSpec> = scene.sweeps.iter().collect();
-    let (sweeps, sweep_warnings) = run_sweeps(&scene, &sweep_solver, &chosen, progress)?;
     let mut warnings = scene.warnings.clone();
     warnings.extend(couple_warnings(&victims));
-    warnings.extend(sweep_warnings);
+    // A sweep that `sweep` would refuse (an ideal edge, a step a shield cannot be
+    // solved at) is named on the page with its reason; the rest of the page stands.
+    let mut sweeps = Vec::new();
+    let mut not_run = Vec::new();
+    for spec in &scene.sweeps {
+        match run_sweeps(&scene, &sweep_solver, &[spec as &SweepSpec], progress) {
+            Ok((mut done, sweep_warnings)) => {
+                sweeps.append(&mut done);
+                warnings.extend(sweep_warnings);
+            }
+            Err(why) => {
+                warnings.push(format!("sweep \"{}\" was not run: {why}", spec.id));
+                not_run.push((spec.id.clone(), why.to_string()));
+            }
+        }
+    }
     let plots = Plots {
         drawing: plot::scene_views_svg(&scene)
             .map_err(|why| warnings.push(format!("the scene drawing: {why}")))
@@ -66,6 +80,7 @@ pub fn report(
         date,
         victims: &victims,
         sweeps: &sweeps,
+        not_run: &not_run,
         plots: &plots,
         warnings: &warnings,
     }

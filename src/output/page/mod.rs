@@ -37,8 +37,10 @@ pub struct ReviewPage<'a> {
     pub date: jiff::Timestamp,
     /// What `couple` found for each victim, in scene order.
     pub victims: &'a [VictimReport],
-    /// Every sweep of the scene, run as `sweep` runs it.
+    /// The sweeps of the scene that ran, as `sweep` runs them, in scene order.
     pub sweeps: &'a [SweepResult],
+    /// The sweeps that could not run: (id, why).
+    pub not_run: &'a [(String, String)],
     /// The plots.
     pub plots: &'a Plots,
     /// Every warning of the run: the scene's, then `couple`'s, then the sweeps'.
@@ -141,14 +143,15 @@ struct Page<'a> {
     date_iso: String,
     tolerance: Num,
     contents: Vec<Entry>,
-    drawing: Option<&'a str>,
+    drawing: Option<String>,
     counts: String,
     summary: Vec<victims::SummaryRow>,
     victims: Vec<victims::VictimSection>,
     sweeps: Vec<sweeps::SweepSection>,
+    not_run: &'a [(String, String)],
     options: Vec<sweeps::Options>,
     warnings: &'a [String],
-    cautions: &'static str,
+    cautions: String,
 }
 
 /// More sections than this get a contents list.
@@ -174,16 +177,15 @@ impl<'a> Page<'a> {
             date_iso: p.date.strftime("%Y-%m-%dT%H:%M:%SZ").to_string(),
             tolerance: Num::new(scene.tolerance, format!("{:e}", scene.tolerance)),
             contents: Vec::new(),
-            drawing: p.plots.drawing.as_deref(),
+            drawing: p.plots.drawing.as_deref().map(inline_svg),
             counts: counts(scene),
             summary: victims::summary(p.victims),
             victims,
             sweeps,
+            not_run: p.not_run,
             options,
             warnings: p.warnings,
-            cautions: crate::app::CAUTIONS
-                .strip_prefix("Cautions: ")
-                .unwrap_or(crate::app::CAUTIONS),
+            cautions: cautions(),
         };
         page.contents = page.contents_list();
         page
@@ -208,18 +210,64 @@ impl<'a> Page<'a> {
                 .collect()
         };
         if !self.victims.is_empty() {
-            let items = self.victims.iter().map(|v| (v.anchor.clone(), format!("victim {}", v.id)));
+            let items = self
+                .victims
+                .iter()
+                .map(|v| (v.anchor.clone(), format!("victim {}", v.id)));
             list.push(entry("victims", "Victims in detail", sub(items.collect())));
         }
-        let items = self.sweeps.iter().map(|s| (s.anchor.clone(), format!("sweep {}", s.id)));
+        let items = self
+            .sweeps
+            .iter()
+            .map(|s| (s.anchor.clone(), format!("sweep {}", s.id)));
         list.push(entry("sweeps", "Sweeps", sub(items.collect())));
         if !self.options.is_empty() {
             list.push(entry("shield-options", "Shield options", Vec::new()));
         }
         list.push(entry("warnings", "Warnings and cautions", Vec::new()));
         list.push(entry("limits", "The model's limits", Vec::new()));
-        if list.len() > CONTENTS_FROM { list } else { Vec::new() }
+        if list.len() > CONTENTS_FROM {
+            list
+        } else {
+            Vec::new()
+        }
     }
+}
+
+/// Our own SVG document made ready to sit inside the page: without an XML declaration
+/// and without namespace declarations on its root element (the HTML parser gives an
+/// inline `<svg>` its namespace), so that the page names no URL at all. Empty when
+/// `svg` has no `<svg` element.
+pub(crate) fn inline_svg(svg: &str) -> String {
+    let Some(start) = svg.find("<svg") else {
+        return String::new();
+    };
+    let body = &svg[start..];
+    let Some(end) = body.find('>') else {
+        return String::new();
+    };
+    let mut tag = body[..end].to_string();
+    while let Some(at) = tag.find(" xmlns") {
+        // ` xmlns="…"` or ` xmlns:prefix="…"`: up to the closing quote.
+        let value = tag[at..].find('"').map(|q| at + q + 1);
+        let close = value.and_then(|v| tag[v..].find('"').map(|q| v + q + 1));
+        match close {
+            Some(c) => tag.replace_range(at..c, ""),
+            None => break,
+        }
+    }
+    format!("{tag}{}", &body[end..])
+}
+
+/// The cautions of every `--help`, as one sentence-case paragraph (the heading says
+/// "Cautions").
+fn cautions() -> String {
+    let text = crate::app::CAUTIONS;
+    let text = text.strip_prefix("Cautions: ").unwrap_or(text);
+    let mut chars = text.chars();
+    chars.next().map_or(String::new(), |first| {
+        first.to_uppercase().chain(chars).collect()
+    })
 }
 
 /// "2 sources, 1 victim, 1 shield, 3 sweeps".
@@ -235,4 +283,21 @@ fn counts(scene: &Scene) -> String {
     }
     parts.push(n(scene.sweeps.len(), "sweep", "sweeps"));
     parts.join(", ")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn inline_svg_drops_the_declaration_and_namespaces_only() {
+        let doc = "<?xml version=\"1.0\"?>\n<svg width=\"9\" xmlns=\"http://www.w3.org/2000/svg\" \
+                   xmlns:xlink=\"http://www.w3.org/1999/xlink\" viewBox=\"0 0 9 9\"><text \
+                   xmlns=\"x\">a</text></svg>";
+        assert_eq!(
+            inline_svg(doc),
+            "<svg width=\"9\" viewBox=\"0 0 9 9\"><text xmlns=\"x\">a</text></svg>"
+        );
+        assert_eq!(inline_svg("not a drawing"), "");
+    }
 }

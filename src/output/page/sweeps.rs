@@ -31,7 +31,10 @@ pub(crate) fn sections(
             anchor: format!("sweep-{}", i + 1),
             id: r.spec.id.clone(),
             facts: facts(scene, r),
-            plot: plots.get(i).cloned().flatten(),
+            plot: plots
+                .get(i)
+                .and_then(Option::as_deref)
+                .map(super::inline_svg),
         })
         .collect()
 }
@@ -49,6 +52,11 @@ fn facts(scene: &Scene, r: &SweepResult) -> Vec<Fact> {
         Vary::Angle(a) => format!("angle turned about {}", dir(&a)),
         Vary::Frequency => "fundamental frequency (every line scales with it)".to_string(),
     };
+    let unit = match spec.vary {
+        Vary::Distance(_) => "m moved",
+        Vary::Angle(_) => "°",
+        Vary::Frequency => "Hz",
+    };
     let mut f = vec![
         Fact::words("victim", scene.victims[spec.victim].id.clone()),
         Fact::words(
@@ -64,8 +72,8 @@ fn facts(scene: &Scene, r: &SweepResult) -> Vec<Fact> {
                 }
             ),
         ),
-        Fact::num("from", swept(spec.vary, spec.from)),
-        Fact::num("to", swept(spec.vary, spec.to)),
+        Fact::num(&format!("from ({unit})"), swept(spec.vary, spec.from)),
+        Fact::num(&format!("to ({unit})"), swept(spec.vary, spec.to)),
     ];
     let (lo, hi) = r.rows.iter().fold((f64::INFINITY, 0.0f64), |(a, b), row| {
         (a.min(row.total_rms), b.max(row.total_rms))
@@ -95,10 +103,7 @@ fn facts(scene: &Scene, r: &SweepResult) -> Vec<Fact> {
 /// sweep, the steps over the limit of the others.
 fn verdict(r: &SweepResult) -> Vec<Fact> {
     let Some(limit) = r.limit else {
-        return vec![Fact::words(
-            "limit (V rms)",
-            "none set: no safe value",
-        )];
+        return vec![Fact::words("limit (V rms)", "none set: no safe value")];
     };
     let mut f = vec![Fact::num("limit (V rms)", Num::si(limit, "V"))];
     let spec = &r.spec;

@@ -144,7 +144,10 @@ pub(crate) fn sections(
                 sources,
                 facts: totals(r, v.load, v.self_inductance),
                 verdict: Verdict::of(r),
-                spectrum: spectra.get(i).cloned().flatten(),
+                spectrum: spectra
+                    .get(i)
+                    .and_then(Option::as_deref)
+                    .map(super::inline_svg),
             }
         })
         .collect()

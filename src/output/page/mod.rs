@@ -262,7 +262,7 @@ pub(crate) fn inline_svg(svg: &str) -> String {
 /// The cautions of every `--help`, as one sentence-case paragraph (the heading says
 /// "Cautions").
 fn cautions() -> String {
-    let text = crate::app::CAUTIONS;
+    let text = super::CAUTIONS;
     let text = text.strip_prefix("Cautions: ").unwrap_or(text);
     let mut chars = text.chars();
     chars.next().map_or(String::new(), |first| {

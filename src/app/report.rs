@@ -21,7 +21,7 @@ pub const SOURCE_DATE_EPOCH: &str = "SOURCE_DATE_EPOCH";
 /// of margins, each victim's lines and spectrum, each sweep's plot and safe value,
 /// shield options, every warning and the cautions. A sweep that cannot run is named on
 /// the page and among the warnings with its reason. Dated now (UTC), or at
-/// [`SOURCE_DATE_EPOCH`] when that is set. `progress` is called with (done, total),
+/// `SOURCE_DATE_EPOCH` (whole seconds since 1970) when that is set. `progress` is called with (done, total),
 /// first over the victims, then over the sweeps' steps.
 pub fn report(
     path: &Path,

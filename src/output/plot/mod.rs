@@ -9,10 +9,12 @@ use crate::units::format_si;
 use plotters::prelude::*;
 
 mod layout;
+mod scene_view;
 mod separation;
 mod spectrum;
 mod sweep;
 
+pub use scene_view::scene_views_svg;
 pub use spectrum::{SpectrumPlot, spectrum_svg};
 pub use sweep::sweep_svg;
 

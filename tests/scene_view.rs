@@ -51,10 +51,10 @@ fn points(s: &str) -> Vec<(f64, f64)> {
 
 /// Bounding box (x0, y0, x1, y1) of points.
 fn bbox(pts: &[(f64, f64)]) -> (f64, f64, f64, f64) {
-    pts.iter().fold(
-        (f64::MAX, f64::MAX, f64::MIN, f64::MIN),
-        |b, p| (b.0.min(p.0), b.1.min(p.1), b.2.max(p.0), b.3.max(p.1)),
-    )
+    pts.iter()
+        .fold((f64::MAX, f64::MAX, f64::MIN, f64::MIN), |b, p| {
+            (b.0.min(p.0), b.1.min(p.1), b.2.max(p.0), b.3.max(p.1))
+        })
 }
 
 struct Drawing {
@@ -69,10 +69,15 @@ struct Drawing {
 
 fn read(svg: &str) -> Drawing {
     let doc = roxmltree::Document::parse(svg).expect("the SVG is XML");
-    let texts: Vec<_> = doc.descendants().filter(|n| n.has_tag_name("text")).collect();
+    let texts: Vec<_> = doc
+        .descendants()
+        .filter(|n| n.has_tag_name("text"))
+        .collect();
+    // The backend writes each text on a line of its own inside the element.
+    let text = |n: &roxmltree::Node| n.text().map(str::trim).unwrap_or("").to_string();
     let side_top = texts
         .iter()
-        .find(|t| t.text().is_some_and(|s| s.starts_with("Side view")))
+        .find(|t| text(t).starts_with("Side view"))
         .and_then(|t| t.attribute("y")?.parse::<f64>().ok())
         .expect("a side view heading");
     let num = |n: &roxmltree::Node, k: &str| n.attribute(k).and_then(|v| v.parse::<f64>().ok());
@@ -83,15 +88,21 @@ fn read(svg: &str) -> Drawing {
             .iter()
             .filter(|t| in_plan(t) && t.attribute("text-anchor") == Some(anchor))
             .filter_map(|t| {
-                let v: f64 = t.text()?.parse().ok()?;
-                let at = if anchor == "middle" { num(t, "x")? } else { num(t, "y")? };
+                let v: f64 = text(t).parse().ok()?;
+                let at = if anchor == "middle" {
+                    num(t, "x")?
+                } else {
+                    num(t, "y")?
+                };
                 Some((v, at))
             })
             .collect()
     };
+    // NaN when an axis shows fewer than two ticks.
     let slope = |t: Vec<(f64, f64)>| {
-        assert!(t.len() >= 2, "at least two ticks: {t:?}");
-        let (a, b) = (t[0], t[t.len() - 1]);
+        let (Some(&a), Some(&b)) = (t.first(), t.last()) else {
+            return f64::NAN;
+        };
         ((b.1 - a.1) / (b.0 - a.0)).abs()
     };
     let px_per_mm = (slope(ticks("middle")), slope(ticks("end")));
@@ -108,12 +119,13 @@ fn read(svg: &str) -> Drawing {
             let stroke = n.attribute("stroke").unwrap_or("").to_uppercase();
             strokes.entry(stroke).or_default().extend(pts);
         } else if n.has_tag_name("polygon")
-            && n.attribute("fill").is_some_and(|f| f.eq_ignore_ascii_case(SHIELD))
+            && n.attribute("fill")
+                .is_some_and(|f| f.eq_ignore_ascii_case(SHIELD))
         {
             bands.push(pts);
         }
     }
-    let texts = texts.iter().filter_map(|t| t.text().map(str::to_string)).collect();
+    let texts = texts.iter().map(text).collect();
     Drawing {
         strokes,
         bands,
@@ -133,15 +145,27 @@ fn the_plan_view_is_to_scale_with_equal_axes() {
     // The loop: 20 mm across, as wide as it is tall.
     let ring = bbox(&d.strokes[SOURCE]);
     let (w, h) = (ring.2 - ring.0, ring.3 - ring.1);
-    assert!((w / ten_mm - 2.0).abs() < 0.04, "loop {w} px wide, 10 mm = {ten_mm} px");
-    assert!((h / ten_mm - 2.0).abs() < 0.04, "loop {h} px tall, 10 mm = {ten_mm} px");
+    assert!(
+        (w / ten_mm - 2.0).abs() < 0.04,
+        "loop {w} px wide, 10 mm = {ten_mm} px"
+    );
+    assert!(
+        (h / ten_mm - 2.0).abs() < 0.04,
+        "loop {h} px tall, 10 mm = {ten_mm} px"
+    );
     assert!((w / h - 1.0).abs() < 0.02, "loop {w} × {h} px");
     // The victim: 20 mm × 8 mm, its centre 40 mm to the right of the loop's, level.
     let v = bbox(&d.strokes[VICTIM]);
-    let ((vw, vh), vc) = ((v.2 - v.0, v.3 - v.1), (0.5 * (v.0 + v.2), 0.5 * (v.1 + v.3)));
+    let ((vw, vh), vc) = (
+        (v.2 - v.0, v.3 - v.1),
+        (0.5 * (v.0 + v.2), 0.5 * (v.1 + v.3)),
+    );
     assert!((vw / ten_mm - 2.0).abs() < 0.04 && (vh / ten_mm - 0.8).abs() < 0.04);
     let rc = (0.5 * (ring.0 + ring.2), 0.5 * (ring.1 + ring.3));
-    assert!(((vc.0 - rc.0) / ten_mm - 4.0).abs() < 0.08, "centres {rc:?} {vc:?}");
+    assert!(
+        ((vc.0 - rc.0) / ten_mm - 4.0).abs() < 0.08,
+        "centres {rc:?} {vc:?}"
+    );
     assert!((vc.1 - rc.1).abs() < 0.05 * ten_mm, "centres {rc:?} {vc:?}");
     // The sheet: one band 1 mm thick, its first face 20 mm right of the loop's centre,
     // spanning the view's height.
@@ -151,7 +175,11 @@ fn the_plan_view_is_to_scale_with_equal_axes() {
     assert!(((b.0 - rc.0) / ten_mm - 2.0).abs() < 0.04, "band {b:?}");
     assert!(b.3 - b.1 > 3.0 * ten_mm, "band {b:?}");
     for id in ["ring", "pickup", "plate (infinite sheet)"] {
-        assert!(d.texts.iter().any(|t| t == id), "no text {id}: {:?}", d.texts);
+        assert!(
+            d.texts.iter().any(|t| t == id),
+            "no text {id}: {:?}",
+            d.texts
+        );
     }
 }
 
@@ -160,7 +188,11 @@ fn design_options_are_labelled_and_an_empty_scene_is_refused() {
     let text = format!("{SCENE}fitted = false\n");
     let scene = Scene::parse("option.toml", &text).unwrap();
     let d = read(&scene_views_svg(&scene).unwrap());
-    assert!(d.texts.iter().any(|t| t == "plate (infinite sheet, option)"));
+    assert!(
+        d.texts
+            .iter()
+            .any(|t| t == "plate (infinite sheet, option)")
+    );
     let mut empty = scene.clone();
     empty.sources.clear();
     empty.victims.clear();
@@ -169,7 +201,32 @@ fn design_options_are_labelled_and_an_empty_scene_is_refused() {
     // Without victims the source still draws.
     let mut alone = scene;
     alone.victims.clear();
-    assert!(read(&scene_views_svg(&alone).unwrap()).strokes.contains_key(SOURCE));
+    assert!(
+        read(&scene_views_svg(&alone).unwrap())
+            .strokes
+            .contains_key(SOURCE)
+    );
+}
+
+/// The sense loop beside a 4400-segment helix: the helix is thinned, the loop keeps its
+/// four corners (20 mm × 8 mm centred on the axis, from scenes/shield-options.toml).
+#[test]
+fn a_small_victim_beside_a_long_helix_keeps_its_corners() {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/shield-options.toml");
+    let scene = Scene::load(&path).unwrap();
+    let d = read(&scene_views_svg(&scene).unwrap());
+    let mm = d.px_per_mm.0;
+    let ring = bbox(&d.strokes[SOURCE]);
+    let centre = (0.5 * (ring.0 + ring.2), 0.5 * (ring.1 + ring.3));
+    let pts = &d.strokes[VICTIM];
+    for (x, y) in [(-10.0, -4.0), (10.0, -4.0), (10.0, 4.0), (-10.0, 4.0)] {
+        // Plan view: y up on the page is −y in pixels.
+        let c = (centre.0 + x * mm, centre.1 - y * mm);
+        let near = pts.iter().any(|p| (p.0 - c.0).hypot(p.1 - c.1) < 2.0);
+        assert!(near, "no corner at ({x}, {y}) mm = {c:?} px");
+    }
+    // The helix's plan view is a circle of 4 mm radius (a little more with the leads).
+    assert!(((ring.2 - ring.0) / mm - 8.0).abs() < 0.2, "{ring:?}");
 }
 
 /// Every demo scene draws, each id appears as text, and the largest helix draws quickly.
@@ -181,12 +238,20 @@ fn every_demo_scene_draws() {
         let svg = scene_views_svg(&scene).unwrap_or_else(|e| panic!("{path:?}: {e}"));
         let took = t.elapsed();
         let d = read(&svg);
-        let ids = scene.sources.iter().map(|s| &s.id).chain(scene.victims.iter().map(|v| &v.id));
+        let ids = scene
+            .sources
+            .iter()
+            .map(|s| &s.id)
+            .chain(scene.victims.iter().map(|v| &v.id));
         for id in ids {
             assert!(d.texts.iter().any(|t| t == id), "{path:?}: no text {id}");
         }
         for s in &scene.shields {
-            assert!(d.texts.iter().any(|t| t.starts_with(&s.id)), "{path:?}: {}", s.id);
+            assert!(
+                d.texts.iter().any(|t| t.starts_with(&s.id)),
+                "{path:?}: {}",
+                s.id
+            );
         }
         let points = svg.matches(',').count();
         assert!(points < 20_000, "{path:?}: {points} points");
@@ -223,5 +288,9 @@ fn write_demo_scene_views() {
         std::fs::write(out.join(format!("{name}.svg")), svg).unwrap();
     }
     let scene = Scene::parse("scale.toml", SCENE).unwrap();
-    std::fs::write(out.join("scale-check.svg"), scene_views_svg(&scene).unwrap()).unwrap();
+    std::fs::write(
+        out.join("scale-check.svg"),
+        scene_views_svg(&scene).unwrap(),
+    )
+    .unwrap();
 }

@@ -15,7 +15,7 @@ use crate::model::{Sheet, victim_points};
 use plotters::element::DashedPathElement;
 use plotters::prelude::*;
 use plotters::style::full_palette::{
-    BLUE_700, BLUEGREY_200, BLUEGREY_500, BLUEGREY_800, DEEPORANGE_800, GREY_200, GREY_700,
+    BLUE_700, BLUEGREY_500, BLUEGREY_800, DEEPORANGE_800, GREY_200, GREY_700,
 };
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
@@ -37,6 +37,9 @@ const TITLE: i32 = 62;
 const ROW: i32 = 20;
 /// Most polyline points drawn per view.
 const BUDGET: usize = 3000;
+/// Paths of at most this many pixel-thinned points are never thinned further, so that
+/// the corners of a victim's rectangle survive.
+const SHORT: usize = 300;
 /// A part whose drawing spans fewer pixels than this is also ringed and noted.
 const TINY_PX: f64 = 6.0;
 /// Label font size, px.
@@ -90,6 +93,7 @@ struct Panel {
     y0: f64,
     scale: f64,
     depth: f64,
+    notes: Vec<String>,
 }
 
 impl Panel {
@@ -115,7 +119,13 @@ pub fn scene_views_svg(scene: &Scene) -> Result<String, String> {
     let parts = parts(scene);
     let mut pts: Vec<Vec3> = parts
         .iter()
-        .flat_map(|p| p.paths.iter().flatten().copied().chain(p.dipoles.iter().map(|d| d.0)))
+        .flat_map(|p| {
+            p.paths
+                .iter()
+                .flatten()
+                .copied()
+                .chain(p.dipoles.iter().map(|d| d.0))
+        })
         .collect();
     if pts.is_empty() {
         return Err("nothing to draw: the scene has no sources and no victims".into());
@@ -148,8 +158,13 @@ pub fn scene_views_svg(scene: &Scene) -> Result<String, String> {
                 y0: mid - 0.5 * h / scale,
                 scale,
                 depth: 0.5 * (lo[view.d] + hi[view.d]),
+                notes: scene
+                    .shields
+                    .iter()
+                    .filter_map(|s| parallel_note(view, s))
+                    .collect(),
             };
-            top += h as i32 + FOOT + HEAD;
+            top += h as i32 + FOOT + HEAD + ROW * p.notes.len() as i32;
             p
         })
         .collect();
@@ -158,12 +173,13 @@ pub fn scene_views_svg(scene: &Scene) -> Result<String, String> {
     let height = legend_top + ROW * (1 + notes.len() as i32) + 12;
     let mut svg = String::new();
     {
-        let root = SVGBackend::with_string(&mut svg, (WIDTH as u32, height as u32))
-            .into_drawing_area();
+        let root =
+            SVGBackend::with_string(&mut svg, (WIDTH as u32, height as u32)).into_drawing_area();
         root.fill(&WHITE).map_err(err)?;
         let centre = Pos::new(HPos::Center, VPos::Top);
         let title = ("sans-serif", 19).into_font().color(&BLACK).pos(centre);
-        root.draw_text(&scene.title, &title, (WIDTH / 2, 10)).map_err(err)?;
+        root.draw_text(&scene.title, &title, (WIDTH / 2, 10))
+            .map_err(err)?;
         let sub = ("sans-serif", 13).into_font().color(&GREY_700).pos(centre);
         let line = "The scene to scale: both views share one scale (see the scale bar)";
         root.draw_text(line, &sub, (WIDTH / 2, 38)).map_err(err)?;
@@ -181,7 +197,12 @@ fn parts(scene: &Scene) -> Vec<Part> {
     let sources = scene.sources.iter().map(|s| Part {
         id: s.id.clone(),
         source: true,
-        paths: s.conductors.wires.iter().map(|w| w.vertices.clone()).collect(),
+        paths: s
+            .conductors
+            .wires
+            .iter()
+            .map(|w| w.vertices.clone())
+            .collect(),
         dipoles: s
             .conductors
             .dipoles
@@ -273,13 +294,19 @@ fn draw_panel(root: &Root<'_>, p: &Panel, scene: &Scene, parts: &[Part]) -> Resu
         .into_font()
         .color(&BLACK)
         .pos(Pos::new(HPos::Left, VPos::Bottom));
-    root.draw_text(p.view.heading, &head, (l, t - 6)).map_err(err)?;
+    root.draw_text(p.view.heading, &head, (l, t - 6))
+        .map_err(err)?;
+    let note = ("sans-serif", LABEL).into_font().color(&SHIELD_TEXT);
+    for (k, n) in p.notes.iter().enumerate() {
+        root.draw_text(n, &note, (l, b + FOOT - 4 + ROW * k as i32))
+            .map_err(err)?;
+    }
     scale_bar(root, p, step)
 }
 
-/// The tick step (m): 1, 2 or 5 times a power of ten, at least 70 px apart.
+/// The tick step (m): 1, 2 or 5 times a power of ten, at least 55 px apart.
 fn tick_step(scale: f64) -> f64 {
-    let raw = 70.0 / scale;
+    let raw = 55.0 / scale;
     let base = 10f64.powf(raw.log10().floor());
     [1.0, 2.0, 5.0, 10.0]
         .iter()
@@ -295,23 +322,32 @@ fn grid(root: &Root<'_>, p: &Panel, step: f64) -> Result<(), PlotError> {
     let (a0, a1) = (p.x0, p.x0 + f64::from(p.w) / p.scale);
     for k in (a0 / step).ceil() as i64..=(a1 / step).floor() as i64 {
         let x = p.plane(k as f64 * step, p.y0).0.round() as i32;
-        root.draw(&PathElement::new([(x, t), (x, b)], GREY_200.stroke_width(1)))
-            .map_err(err)?;
+        root.draw(&PathElement::new(
+            [(x, t), (x, b)],
+            GREY_200.stroke_width(1),
+        ))
+        .map_err(err)?;
         let style = tick.pos(Pos::new(HPos::Center, VPos::Top));
-        root.draw_text(&mm(k as f64 * step), &style, (x, b + 5)).map_err(err)?;
+        root.draw_text(&mm(k as f64 * step), &style, (x, b + 5))
+            .map_err(err)?;
     }
     let (b0, b1) = (p.y0, p.y0 + f64::from(p.h) / p.scale);
     for k in (b0 / step).ceil() as i64..=(b1 / step).floor() as i64 {
         let y = p.plane(p.x0, k as f64 * step).1.round() as i32;
-        root.draw(&PathElement::new([(l, y), (r, y)], GREY_200.stroke_width(1)))
-            .map_err(err)?;
+        root.draw(&PathElement::new(
+            [(l, y), (r, y)],
+            GREY_200.stroke_width(1),
+        ))
+        .map_err(err)?;
         let style = tick.pos(Pos::new(HPos::Right, VPos::Center));
-        root.draw_text(&mm(k as f64 * step), &style, (l - 6, y)).map_err(err)?;
+        root.draw_text(&mm(k as f64 * step), &style, (l - 6, y))
+            .map_err(err)?;
     }
     let name = ("sans-serif", 13).into_font().color(&GREY_700);
     let below = name.pos(Pos::new(HPos::Center, VPos::Top));
     let across = format!("{} (mm)", AXES[p.view.h]);
-    root.draw_text(&across, &below, ((l + r) / 2, b + 24)).map_err(err)?;
+    root.draw_text(&across, &below, ((l + r) / 2, b + 24))
+        .map_err(err)?;
     let up = format!("{} (mm)", AXES[p.view.v]);
     let side = name.pos(Pos::new(HPos::Left, VPos::Center));
     root.draw_text(&up, &side, (6, (t + b) / 2)).map_err(err)
@@ -330,14 +366,18 @@ fn scale_bar(root: &Root<'_>, p: &Panel, step: f64) -> Result<(), PlotError> {
     let back = [(x1 - len - 8, y - 26), (x1 + 8, y + 10)];
     root.draw(&Rectangle::new(back, WHITE.mix(0.85).filled()))
         .map_err(err)?;
-    root.draw(&Rectangle::new([(x1 - len, y), (x1, y + 4)], BLACK.filled()))
-        .map_err(err)?;
+    root.draw(&Rectangle::new(
+        [(x1 - len, y), (x1, y + 4)],
+        BLACK.filled(),
+    ))
+    .map_err(err)?;
     let style = ("sans-serif", 12)
         .into_font()
         .color(&BLACK)
         .pos(Pos::new(HPos::Center, VPos::Bottom));
     let text = format!("{} mm", mm(step));
-    root.draw_text(&text, &style, (x1 - len / 2, y - 3)).map_err(err)
+    root.draw_text(&text, &style, (x1 - len / 2, y - 3))
+        .map_err(err)
 }
 
 /// One sheet in a view: the band where it cuts the view's middle plane, clipped to the
@@ -345,22 +385,22 @@ fn scale_bar(root: &Root<'_>, p: &Panel, step: f64) -> Result<(), PlotError> {
 fn sheet(root: &Root<'_>, p: &Panel, s: &Sheet, labels: &mut Labels) -> Result<(), PlotError> {
     let (n, o, t) = (s.normal, s.origin, s.thickness());
     let (nh, nv, nd) = (n[p.view.h], n[p.view.v], n[p.view.d]);
-    let kind = if s.fitted { "infinite sheet" } else { "infinite sheet, option" };
+    let kind = if s.fitted {
+        "infinite sheet"
+    } else {
+        "infinite sheet, option"
+    };
     if nh.hypot(nv) < 1e-6 {
-        let (a, b) = (o[p.view.d], o[p.view.d] + t * nd);
-        let text = format!(
-            "{} ({kind}) lies parallel to this view, {} = {} … {} mm",
-            s.id,
-            AXES[p.view.d],
-            mm(a.min(b)),
-            mm(a.max(b))
-        );
-        let [l, top, ..] = p.bounds();
-        return labels.place(root, &text, (l + 6, top + 6), SHIELD_TEXT);
+        return Ok(());
     }
     // Height above the first face of the in-view point (a, b) on the middle plane, m.
-    let height = |a: f64, b: f64| nh * (a - o[p.view.h]) + nv * (b - o[p.view.v]) + nd * (p.depth - o[p.view.d]);
-    let (a1, b1) = (p.x0 + f64::from(p.w) / p.scale, p.y0 + f64::from(p.h) / p.scale);
+    let height = |a: f64, b: f64| {
+        nh * (a - o[p.view.h]) + nv * (b - o[p.view.v]) + nd * (p.depth - o[p.view.d])
+    };
+    let (a1, b1) = (
+        p.x0 + f64::from(p.w) / p.scale,
+        p.y0 + f64::from(p.h) / p.scale,
+    );
     let frame = vec![(p.x0, p.y0), (a1, p.y0), (a1, b1), (p.x0, b1)];
     let band = clip(clip(frame, |q| height(q.0, q.1)), |q| t - height(q.0, q.1));
     if band.len() < 3 {
@@ -382,17 +422,48 @@ fn sheet(root: &Root<'_>, p: &Panel, s: &Sheet, labels: &mut Labels) -> Result<(
     if s.fitted {
         root.draw(&PathElement::new(ring, style)).map_err(err)?;
     } else {
-        root.draw(&DashedPathElement::new(ring, 2, 4, style)).map_err(err)?;
+        root.draw(&DashedPathElement::new(ring, 2, 4, style))
+            .map_err(err)?;
     }
     // Label beside the band's top end (a steep band) or above its left end (a flat one).
     let anchor = if nh.abs() >= nv.abs() {
-        let top = px.iter().min_by_key(|q| (q.1, -q.0)).copied().unwrap_or(px[0]);
+        let top = px
+            .iter()
+            .min_by_key(|q| (q.1, -q.0))
+            .copied()
+            .unwrap_or(px[0]);
         (top.0 + 5, top.1 + 6)
     } else {
-        let left = px.iter().min_by_key(|q| (q.0, q.1)).copied().unwrap_or(px[0]);
+        let left = px
+            .iter()
+            .min_by_key(|q| (q.0, q.1))
+            .copied()
+            .unwrap_or(px[0]);
         (left.0 + 6, left.1 - i32::try_from(LABEL).unwrap_or(13) - 6)
     };
-    labels.place(root, &format!("{} ({kind})", s.id), anchor, SHIELD_TEXT)
+    let text = format!("{} ({kind})", s.id);
+    labels.place(root, &text, anchor, SHIELD_TEXT, nh.abs() < nv.abs())
+}
+
+/// The line under a view that names a sheet lying parallel to it, if `s` does.
+fn parallel_note(view: View, s: &Sheet) -> Option<String> {
+    let (n, o, t) = (s.normal, s.origin, s.thickness());
+    if n[view.h].hypot(n[view.v]) >= 1e-6 {
+        return None;
+    }
+    let (a, b) = (o[view.d], o[view.d] + t * n[view.d]);
+    let kind = if s.fitted {
+        "infinite sheet"
+    } else {
+        "infinite sheet, option"
+    };
+    Some(format!(
+        "{} ({kind}) lies parallel to this view at {} = {} … {} mm: not drawn here",
+        s.id,
+        AXES[view.d],
+        mm(a.min(b)),
+        mm(a.max(b))
+    ))
 }
 
 /// The part of `poly` where `f` ≥ 0 (one Sutherland–Hodgman step; `f` linear).
@@ -440,7 +511,13 @@ fn enclosure(
         }
     }
     let text = format!("{} (enclosure)", e.id);
-    labels.place(root, &text, (top_right.0 + 5, top_right.1), SHIELD_TEXT)
+    labels.place(
+        root,
+        &text,
+        (top_right.0 + 5, top_right.1),
+        SHIELD_TEXT,
+        false,
+    )
 }
 
 /// How many of the pixel-thinned points to skip so that a view draws at most `BUDGET`.
@@ -453,18 +530,21 @@ fn budget_stride(p: &Panel, parts: &[Part]) -> usize {
     kept.div_ceil(BUDGET).max(1)
 }
 
-/// `path` in pixels, points closer than 1 px to the last one kept dropped, then every
-/// `stride`-th point kept (the last always).
+/// `path` in pixels, points closer than 1 px to the last one kept dropped, then, in a
+/// path of more than `SHORT` such points, every `stride`-th point kept (the last always).
 fn thin(p: &Panel, path: &[Vec3], stride: usize) -> Vec<Px> {
     let mut out: Vec<(f64, f64)> = Vec::new();
     for (k, q) in path.iter().enumerate() {
         let xy = p.at(q);
-        let far = out.last().is_none_or(|l| (l.0 - xy.0).hypot(l.1 - xy.1) >= 1.0);
+        let far = out
+            .last()
+            .is_none_or(|l| (l.0 - xy.0).hypot(l.1 - xy.1) >= 1.0);
         if far || k + 1 == path.len() {
             out.push(xy);
         }
     }
     let n = out.len();
+    let stride = if n > SHORT { stride } else { 1 };
     out.iter()
         .enumerate()
         .filter(|(k, _)| k % stride == 0 || k + 1 == n)
@@ -509,26 +589,35 @@ fn draw_part(
     let tiny = part.dipoles.is_empty() && f64::from((x1 - x0).max(y1 - y0)) < TINY_PX;
     if tiny {
         let c = ((x0 + x1) / 2, (y0 + y1) / 2);
-        root.draw(&Circle::new(c, 10, colour.stroke_width(2))).map_err(err)?;
+        root.draw(&Circle::new(c, 10, colour.stroke_width(2)))
+            .map_err(err)?;
         right = c.0 + 10;
     }
-    labels.place(root, &part.id, (right + 5, y0.min((y0 + y1) / 2 - 8)), colour)
+    let at = (right + 5, y0.min((y0 + y1) / 2 - 8));
+    labels.place(root, &part.id, at, colour, false)
 }
 
 /// A dipole: a ring with an arrow along the moment's part in the view, or with a dot
 /// (moment towards the viewer) or a cross (away) when the moment is along the depth.
 fn dipole(root: &Root<'_>, p: &Panel, c: Px, m: &Vec3) -> Result<(), PlotError> {
-    root.draw(&Circle::new(c, 6, SOURCE.stroke_width(2))).map_err(err)?;
+    root.draw(&Circle::new(c, 6, SOURCE.stroke_width(2)))
+        .map_err(err)?;
     let (mh, mv, md) = (m[p.view.h], m[p.view.v], m[p.view.d]);
     let size = m.norm();
     if mh.hypot(mv) > 0.2 * size {
         let (ux, uy) = (mh / mh.hypot(mv), -mv / mh.hypot(mv));
         let at = |l: f64, s: f64| {
-            let (x, y) = (f64::from(c.0) + l * ux - s * uy, f64::from(c.1) + l * uy + s * ux);
+            let (x, y) = (
+                f64::from(c.0) + l * ux - s * uy,
+                f64::from(c.1) + l * uy + s * ux,
+            );
             (x.round() as i32, y.round() as i32)
         };
-        root.draw(&PathElement::new([c, at(24.0, 0.0)], SOURCE.stroke_width(2)))
-            .map_err(err)?;
+        root.draw(&PathElement::new(
+            [c, at(24.0, 0.0)],
+            SOURCE.stroke_width(2),
+        ))
+        .map_err(err)?;
         let head = vec![at(32.0, 0.0), at(22.0, 5.0), at(22.0, -5.0)];
         return root.draw(&Polygon::new(head, SOURCE.filled())).map_err(err);
     }
@@ -562,7 +651,16 @@ impl Labels {
         }
     }
 
-    fn place(&mut self, root: &Root<'_>, text: &str, at: Px, colour: RGBColor) -> Result<(), PlotError> {
+    /// Draws `text` with its top left at `at` or as near as it is free, looking upwards
+    /// first when `up`, else alternately below and above.
+    fn place(
+        &mut self,
+        root: &Root<'_>,
+        text: &str,
+        at: Px,
+        colour: RGBColor,
+        up: bool,
+    ) -> Result<(), PlotError> {
         let w = (text.chars().count() as f64 * 0.56 * f64::from(LABEL)).ceil() as i32;
         let h = LABEL as i32 + 3;
         let [l, t, r, b] = self.frame;
@@ -573,13 +671,22 @@ impl Labels {
                 .iter()
                 .all(|o| x + w <= o[0] || x >= o[2] || y + h <= o[1] || y >= o[3])
         };
+        let shift = |k: i32| match (up, k % 2) {
+            (true, _) if k < 12 => -k,
+            (true, _) => k - 11,
+            (false, 0) => k / 2,
+            (false, _) => -(k + 1) / 2,
+        };
         let y = (0..24)
-            .map(|k| fit(at.1 + if k % 2 == 0 { k / 2 } else { -(k + 1) / 2 } * h))
+            .map(|k| fit(at.1 + shift(k) * h))
             .find(|y| free(*y))
             .unwrap_or(fit(at.1));
         self.taken.push([x, y, x + w, y + h]);
-        root.draw(&Rectangle::new([(x - 2, y), (x + w, y + h)], WHITE.mix(0.75).filled()))
-            .map_err(err)?;
+        root.draw(&Rectangle::new(
+            [(x - 2, y), (x + w, y + h)],
+            WHITE.mix(0.75).filled(),
+        ))
+        .map_err(err)?;
         let style = ("sans-serif", LABEL)
             .into_font()
             .color(&colour)
@@ -589,7 +696,13 @@ impl Labels {
 }
 
 /// The legend row (what each style stands for) and the notes below it.
-fn legend(root: &Root<'_>, scene: &Scene, parts: &[Part], top: i32, notes: &[String]) -> Result<(), PlotError> {
+fn legend(
+    root: &Root<'_>,
+    scene: &Scene,
+    parts: &[Part],
+    top: i32,
+    notes: &[String],
+) -> Result<(), PlotError> {
     let mut entries: Vec<(u8, &str)> = Vec::new();
     if parts.iter().any(|p| p.source) {
         entries.push((0, "source conductor"));
@@ -616,10 +729,16 @@ fn legend(root: &Root<'_>, scene: &Scene, parts: &[Part], top: i32, notes: &[Str
         match kind {
             0 => root.draw(&PathElement::new(line, SOURCE.stroke_width(2))),
             1 => root.draw(&DashedPathElement::new(line, 8, 5, VICTIM.stroke_width(2))),
-            4 => root.draw(&Rectangle::new([(x, y - 6), (x + 30, y + 6)], SHIELD.stroke_width(2))),
+            4 => root.draw(&Rectangle::new(
+                [(x, y - 6), (x + 30, y + 6)],
+                SHIELD.stroke_width(2),
+            )),
             k => {
-                let fill = if k == 2 { SHIELD.mix(0.55) } else { BLUEGREY_200.mix(0.5) };
-                root.draw(&Rectangle::new([(x, y - 5), (x + 30, y + 5)], fill.filled()))
+                let fill = if k == 2 { 0.55 } else { 0.18 };
+                root.draw(&Rectangle::new(
+                    [(x, y - 5), (x + 30, y + 5)],
+                    SHIELD.mix(fill).filled(),
+                ))
             }
         }
         .map_err(err)?;
@@ -628,7 +747,8 @@ fn legend(root: &Root<'_>, scene: &Scene, parts: &[Part], top: i32, notes: &[Str
     }
     let note = font.color(&GREY_700);
     for (k, n) in notes.iter().enumerate() {
-        root.draw_text(n, &note, (LEFT, y + ROW * (k as i32 + 1))).map_err(err)?;
+        root.draw_text(n, &note, (LEFT, y + ROW * (k as i32 + 1)))
+            .map_err(err)?;
     }
     Ok(())
 }

@@ -169,8 +169,10 @@ pub fn scene_views_svg(scene: &Scene) -> Result<String, String> {
         })
         .collect();
     let notes = tiny_notes(&parts, scale);
+    let entries = legend_entries(scene, &parts);
+    let rows = entries.last().map_or(0, |e| e.3 + 1);
     let legend_top = top - HEAD + 4;
-    let height = legend_top + ROW * (1 + notes.len() as i32) + 12;
+    let height = legend_top + ROW * (rows + notes.len() as i32) + 12;
     let mut svg = String::new();
     {
         let root =
@@ -186,7 +188,7 @@ pub fn scene_views_svg(scene: &Scene) -> Result<String, String> {
         for p in &panels {
             draw_panel(&root, p, scene, &parts)?;
         }
-        legend(&root, scene, &parts, legend_top, &notes)?;
+        legend(&root, &entries, legend_top, &notes)?;
         root.present().map_err(err)?;
     }
     Ok(svg)
@@ -287,6 +289,7 @@ fn draw_panel(root: &Root<'_>, p: &Panel, scene: &Scene, parts: &[Part]) -> Resu
     for part in parts {
         draw_part(root, p, part, budget, &mut labels)?;
     }
+    labels.draw(root)?;
     let [l, t, r, b] = p.bounds();
     root.draw(&Rectangle::new([(l, t), (r, b)], GREY_700.stroke_width(1)))
         .map_err(err)?;
@@ -441,8 +444,10 @@ fn sheet(root: &Root<'_>, p: &Panel, s: &Sheet, labels: &mut Labels) -> Result<(
             .unwrap_or(px[0]);
         (left.0 + 6, left.1 - i32::try_from(LABEL).unwrap_or(13) - 6)
     };
+    let left = px.iter().map(|q| q.0).min().unwrap_or(anchor.0) - 5;
     let text = format!("{} ({kind})", s.id);
-    labels.place(root, &text, anchor, SHIELD_TEXT, nh.abs() < nv.abs())
+    labels.place(text, anchor, left, SHIELD_TEXT, nh.abs() < nv.abs());
+    Ok(())
 }
 
 /// The line under a view that names a sheet lying parallel to it, if `s` does.
@@ -490,7 +495,7 @@ fn enclosure(
     e: &crate::model::Enclosure,
     labels: &mut Labels,
 ) -> Result<(), PlotError> {
-    let mut top_right = (i32::MIN, i32::MAX);
+    let (mut top_right, mut left) = ((i32::MIN, i32::MAX), i32::MAX);
     for (inset, width) in [(0.0, 2), (e.thickness, 1)] {
         let c: Vec<Px> = corners(e, inset)
             .iter()
@@ -508,16 +513,18 @@ fn enclosure(
         }
         for q in &c {
             top_right = (top_right.0.max(q.0), top_right.1.min(q.1));
+            left = left.min(q.0 - 5);
         }
     }
     let text = format!("{} (enclosure)", e.id);
     labels.place(
-        root,
-        &text,
+        text,
         (top_right.0 + 5, top_right.1),
+        left,
         SHIELD_TEXT,
         false,
-    )
+    );
+    Ok(())
 }
 
 /// How many of the pixel-thinned points to skip so that a view draws at most `BUDGET`.
@@ -564,8 +571,10 @@ fn draw_part(
     let mut all: Vec<Px> = Vec::new();
     for path in &part.paths {
         let px = thin(p, path, stride);
+        // Close turns of a winding in one px lines, so that they stay apart.
+        let width = if px.len() > SHORT { 1 } else { 2 };
         if part.source {
-            root.draw(&PathElement::new(px.clone(), colour.stroke_width(2)))
+            root.draw(&PathElement::new(px.clone(), colour.stroke_width(width)))
                 .map_err(err)?;
         } else {
             let style = colour.stroke_width(2);
@@ -594,7 +603,8 @@ fn draw_part(
         right = c.0 + 10;
     }
     let at = (right + 5, y0.min((y0 + y1) / 2 - 8));
-    labels.place(root, &part.id, at, colour, false)
+    labels.place(part.id.clone(), at, x0 - 5, colour, false);
+    Ok(())
 }
 
 /// A dipole: a ring with an arrow along the moment's part in the view, or with a dot
@@ -636,11 +646,13 @@ fn dipole(root: &Root<'_>, p: &Panel, c: Px, m: &Vec3) -> Result<(), PlotError> 
     }
 }
 
-/// Labels of one view: each kept inside the frame and moved up or down by whole lines
-/// until it overlaps no earlier label.
+/// Labels of one view: each kept inside the frame, put left of its part (ending at
+/// `left`) when it does not fit on the right, and moved up or down by whole lines until
+/// it overlaps no earlier label. They are drawn after the parts, over them.
 struct Labels {
     frame: [i32; 4],
     taken: Vec<[i32; 4]>,
+    queue: Vec<(Px, String, RGBColor)>,
 }
 
 impl Labels {
@@ -648,23 +660,21 @@ impl Labels {
         Labels {
             frame,
             taken: Vec::new(),
+            queue: Vec::new(),
         }
     }
 
-    /// Draws `text` with its top left at `at` or as near as it is free, looking upwards
+    /// Places `text` with its top left at `at` or as near as it is free, looking upwards
     /// first when `up`, else alternately below and above.
-    fn place(
-        &mut self,
-        root: &Root<'_>,
-        text: &str,
-        at: Px,
-        colour: RGBColor,
-        up: bool,
-    ) -> Result<(), PlotError> {
-        let w = (text.chars().count() as f64 * 0.56 * f64::from(LABEL)).ceil() as i32;
+    fn place(&mut self, text: String, at: Px, left: i32, colour: RGBColor, up: bool) {
+        let w = text_width(&text);
         let h = LABEL as i32 + 3;
         let [l, t, r, b] = self.frame;
-        let x = at.0.min(r - 4 - w).max(l + 4);
+        let x = if at.0 + w > r - 4 && left - w >= l + 4 {
+            left - w
+        } else {
+            at.0.min(r - 4 - w).max(l + 4)
+        };
         let fit = |y: i32| y.clamp(t + 3, b - 3 - h);
         let free = |y: i32| {
             self.taken
@@ -682,27 +692,34 @@ impl Labels {
             .find(|y| free(*y))
             .unwrap_or(fit(at.1));
         self.taken.push([x, y, x + w, y + h]);
-        root.draw(&Rectangle::new(
-            [(x - 2, y), (x + w, y + h)],
-            WHITE.mix(0.75).filled(),
-        ))
-        .map_err(err)?;
-        let style = ("sans-serif", LABEL)
-            .into_font()
-            .color(&colour)
-            .pos(Pos::new(HPos::Left, VPos::Top));
-        root.draw_text(text, &style, (x, y + 1)).map_err(err)
+        self.queue.push(((x, y), text, colour));
+    }
+
+    /// Draws the placed labels on a light backing.
+    fn draw(&self, root: &Root<'_>) -> Result<(), PlotError> {
+        for ((x, y), text, colour) in &self.queue {
+            let (w, h) = (text_width(text), LABEL as i32 + 3);
+            let back = [(x - 2, *y), (x + w + 1, y + h)];
+            root.draw(&Rectangle::new(back, WHITE.mix(0.7).filled()))
+                .map_err(err)?;
+            let style = ("sans-serif", LABEL)
+                .into_font()
+                .color(colour)
+                .pos(Pos::new(HPos::Left, VPos::Top));
+            root.draw_text(text, &style, (*x, y + 1)).map_err(err)?;
+        }
+        Ok(())
     }
 }
 
-/// The legend row (what each style stands for) and the notes below it.
-fn legend(
-    root: &Root<'_>,
-    scene: &Scene,
-    parts: &[Part],
-    top: i32,
-    notes: &[String],
-) -> Result<(), PlotError> {
+/// About how wide `text` is drawn at the label size, px (the backend writes a font size
+/// of about 0.8 of the one asked for; sans-serif letters average about 0.55 em).
+fn text_width(text: &str) -> i32 {
+    (text.chars().count() as f64 * 0.47 * f64::from(LABEL)).ceil() as i32
+}
+
+/// The legend's entries (style, text) and where each goes: (x px, row).
+fn legend_entries(scene: &Scene, parts: &[Part]) -> Vec<(u8, &'static str, i32, i32)> {
     let mut entries: Vec<(u8, &str)> = Vec::new();
     if parts.iter().any(|p| p.source) {
         entries.push((0, "source conductor"));
@@ -719,12 +736,36 @@ fn legend(
     if !scene.enclosures.is_empty() {
         entries.push((4, "enclosure walls"));
     }
+    if parts.iter().any(|p| !p.dipoles.is_empty()) {
+        entries.push((5, "dipole: arrow along its moment, ⊙ towards you, ⊗ away"));
+    }
+    let (mut x, mut row) = (LEFT, 0);
+    let mut out = Vec::new();
+    for (kind, text) in entries {
+        let w = 36 + text_width(text) + 28;
+        if x > LEFT && x + w - 28 > WIDTH - RIGHT {
+            (x, row) = (LEFT, row + 1);
+        }
+        out.push((kind, text, x, row));
+        x += w;
+    }
+    out
+}
+
+/// The legend rows (what each style stands for) from `top` px, and the notes below.
+fn legend(
+    root: &Root<'_>,
+    entries: &[(u8, &str, i32, i32)],
+    top: i32,
+    notes: &[String],
+) -> Result<(), PlotError> {
     let font = ("sans-serif", LABEL)
         .into_font()
         .color(&BLACK)
         .pos(Pos::new(HPos::Left, VPos::Center));
-    let (mut x, y) = (LEFT, top + ROW / 2);
-    for (kind, text) in entries {
+    let rows = entries.last().map_or(0, |e| e.3 + 1);
+    for &(kind, text, x, row) in entries {
+        let y = top + ROW / 2 + ROW * row;
         let line = [(x, y), (x + 30, y)];
         match kind {
             0 => root.draw(&PathElement::new(line, SOURCE.stroke_width(2))),
@@ -733,22 +774,33 @@ fn legend(
                 [(x, y - 6), (x + 30, y + 6)],
                 SHIELD.stroke_width(2),
             )),
+            5 => dipole_sample(root, (x + 15, y)),
             k => {
                 let fill = if k == 2 { 0.55 } else { 0.18 };
-                root.draw(&Rectangle::new(
-                    [(x, y - 5), (x + 30, y + 5)],
-                    SHIELD.mix(fill).filled(),
-                ))
+                let band = [(x, y - 5), (x + 30, y + 5)];
+                root.draw(&Rectangle::new(band, SHIELD.mix(fill).filled()))
             }
         }
         .map_err(err)?;
         root.draw_text(text, &font, (x + 36, y)).map_err(err)?;
-        x += 36 + (text.chars().count() as f64 * 0.56 * f64::from(LABEL)) as i32 + 28;
     }
     let note = font.color(&GREY_700);
     for (k, n) in notes.iter().enumerate() {
-        root.draw_text(n, &note, (LEFT, y + ROW * (k as i32 + 1)))
-            .map_err(err)?;
+        let y = top + ROW / 2 + ROW * (rows + k as i32);
+        root.draw_text(n, &note, (LEFT, y)).map_err(err)?;
     }
     Ok(())
+}
+
+/// The legend's dipole: a ring with an arrow to the right.
+fn dipole_sample(root: &Root<'_>, c: Px) -> Result<(), DrawingAreaErrorKind<std::io::Error>> {
+    root.draw(&Circle::new((c.0 - 8, c.1), 5, SOURCE.stroke_width(2)))?;
+    root.draw(&PathElement::new(
+        [(c.0 - 8, c.1), (c.0 + 8, c.1)],
+        SOURCE.stroke_width(2),
+    ))?;
+    root.draw(&Polygon::new(
+        vec![(c.0 + 14, c.1), (c.0 + 7, c.1 - 4), (c.0 + 7, c.1 + 4)],
+        SOURCE.filled(),
+    ))
 }

@@ -208,6 +208,37 @@ fn design_options_are_labelled_and_an_empty_scene_is_refused() {
     );
 }
 
+/// A 2 mm loop 1.5 m from a 1 m loop is about half a pixel across: it is ringed in
+/// both views and a note gives its size.
+#[test]
+fn a_victim_too_small_to_see_is_ringed_and_noted() {
+    let text = r#"
+[[source]]
+id = "big"
+kind = "loop"
+radius = "1 m"
+current = { frequency = "50 Hz", peak = "1 A" }
+
+[[victim]]
+id = "speck"
+kind = "loop"
+radius = "1 mm"
+position = ["1.5 m", "0 m", "0 m"]
+"#;
+    let scene = Scene::parse("tiny.toml", text).unwrap();
+    let svg = scene_views_svg(&scene).unwrap();
+    let d = read(&svg);
+    let note = "victim \"speck\" is 2 mm across";
+    assert!(d.texts.iter().any(|t| t.starts_with(note)), "{:?}", d.texts);
+    let doc = roxmltree::Document::parse(&svg).unwrap();
+    let rings = doc
+        .descendants()
+        .filter(|n| n.has_tag_name("circle"))
+        .filter(|n| n.attribute("stroke").is_some_and(|c| c.eq_ignore_ascii_case(VICTIM)))
+        .count();
+    assert_eq!(rings, 2, "one ring per view");
+}
+
 /// The sense loop beside a 4400-segment helix: the helix is thinned, the loop keeps its
 /// four corners (20 mm × 8 mm centred on the axis, from scenes/shield-options.toml).
 #[test]

@@ -134,41 +134,10 @@ pub fn scene_views_svg(scene: &Scene) -> Result<String, String> {
     if pts.iter().any(|p| !p.iter().all(|c| c.is_finite())) {
         return Err("cannot draw the scene: a coordinate is not finite".into());
     }
-    let (lo, hi) = fit(&pts);
-    let w = f64::from(WIDTH - LEFT - RIGHT);
-    let mut scale = w / (hi[0] - lo[0]);
-    let tall = (hi[1] - lo[1]).max(hi[2] - lo[2]) * scale;
-    if tall > MAX_PANEL {
-        scale *= MAX_PANEL / tall;
-    }
-    let x0 = 0.5 * (lo[0] + hi[0]) - 0.5 * w / scale;
-    let mut top = TITLE + HEAD;
-    let panels: Vec<Panel> = [PLAN, SIDE]
-        .into_iter()
-        .map(|view| {
-            let h = ((hi[view.v] - lo[view.v]) * scale).max(MIN_PANEL).round();
-            let mid = 0.5 * (lo[view.v] + hi[view.v]);
-            let p = Panel {
-                view,
-                left: LEFT,
-                top,
-                w: w as i32,
-                h: h as i32,
-                x0,
-                y0: mid - 0.5 * h / scale,
-                scale,
-                depth: 0.5 * (lo[view.d] + hi[view.d]),
-                notes: scene
-                    .shields
-                    .iter()
-                    .filter_map(|s| parallel_note(view, s))
-                    .collect(),
-            };
-            top += h as i32 + FOOT + HEAD + ROW * p.notes.len() as i32;
-            p
-        })
-        .collect();
-    let notes = tiny_notes(&parts, scale);
+    let (lo, hi) = bounds(&pts);
+    let (panels, shared, top) = layout(scene, lo, hi);
+    let smallest = panels.iter().map(|p| p.scale).fold(f64::INFINITY, f64::min);
+    let notes = tiny_notes(&parts, smallest);
     let entries = legend_entries(scene, &parts);
     let rows = entries.last().map_or(0, |e| e.3 + 1);
     let legend_top = top - HEAD + 4;
@@ -183,7 +152,11 @@ pub fn scene_views_svg(scene: &Scene) -> Result<String, String> {
         root.draw_text(&scene.title, &title, (WIDTH / 2, 10))
             .map_err(err)?;
         let sub = ("sans-serif", 13).into_font().color(&GREY_700).pos(centre);
-        let line = "The scene to scale: both views share one scale (see the scale bar)";
+        let line = if shared {
+            "The scene to scale: both views share one scale (see the scale bars)"
+        } else {
+            "The scene to scale: the views have different scales (see each scale bar)"
+        };
         root.draw_text(line, &sub, (WIDTH / 2, 38)).map_err(err)?;
         for p in &panels {
             draw_panel(&root, p, scene, &parts)?;
@@ -221,9 +194,55 @@ fn parts(scene: &Scene) -> Vec<Part> {
     sources.chain(victims).collect()
 }
 
-/// The box around `pts` with a margin: a tenth of the largest extent on every side
-/// (5 mm around a single point), m.
-fn fit(pts: &[Vec3]) -> ([f64; 3], [f64; 3]) {
+/// The views placed from the top of the figure, whether they share one scale, and the
+/// height (px) they fill. Each view's best scale (px/m) fits its parts with a margin of a
+/// tenth of their larger extent into the width and `MAX_PANEL`; both views take the
+/// smaller of the two unless one is more than twice the other.
+fn layout(scene: &Scene, lo: [f64; 3], hi: [f64; 3]) -> (Vec<Panel>, bool, i32) {
+    let w = f64::from(WIDTH - LEFT - RIGHT);
+    let span = |view: View| {
+        let (a, b) = (hi[view.h] - lo[view.h], hi[view.v] - lo[view.v]);
+        let pad = if a.max(b) > 0.0 { 0.1 * a.max(b) } else { 5e-3 };
+        (a + 2.0 * pad, b + 2.0 * pad)
+    };
+    let best = |view: View| {
+        let (a, b) = span(view);
+        (w / a).min(MAX_PANEL / b)
+    };
+    let (plan, side) = (best(PLAN), best(SIDE));
+    let shared = plan.max(side) < 2.0 * plan.min(side);
+    let mut top = TITLE + HEAD;
+    let panels = [(PLAN, plan), (SIDE, side)]
+        .into_iter()
+        .map(|(view, own)| {
+            let scale = if shared { plan.min(side) } else { own };
+            let h = (span(view).1 * scale).max(MIN_PANEL).round();
+            let mid = |k: usize| 0.5 * (lo[k] + hi[k]);
+            let p = Panel {
+                view,
+                left: LEFT,
+                top,
+                w: w as i32,
+                h: h as i32,
+                x0: mid(view.h) - 0.5 * w / scale,
+                y0: mid(view.v) - 0.5 * h / scale,
+                scale,
+                depth: mid(view.d),
+                notes: scene
+                    .shields
+                    .iter()
+                    .filter_map(|s| parallel_note(view, s))
+                    .collect(),
+            };
+            top += h as i32 + FOOT + HEAD + ROW * p.notes.len() as i32;
+            p
+        })
+        .collect();
+    (panels, shared, top)
+}
+
+/// The smallest box around `pts` (lowest and highest x, y, z), m.
+fn bounds(pts: &[Vec3]) -> ([f64; 3], [f64; 3]) {
     let mut lo = [f64::INFINITY; 3];
     let mut hi = [f64::NEG_INFINITY; 3];
     for p in pts {
@@ -232,9 +251,7 @@ fn fit(pts: &[Vec3]) -> ([f64; 3], [f64; 3]) {
             hi[k] = hi[k].max(p[k]);
         }
     }
-    let span = (0..3).map(|k| hi[k] - lo[k]).fold(0.0, f64::max);
-    let pad = if span > 0.0 { 0.1 * span } else { 5e-3 };
-    (lo.map(|v| v - pad), hi.map(|v| v + pad))
+    (lo, hi)
 }
 
 /// The eight corners of an enclosure's box shrunk by `inset` (m) on every side.
@@ -258,8 +275,8 @@ fn tiny_notes(parts: &[Part], scale: f64) -> Vec<String> {
             (size * scale < TINY_PX && p.dipoles.is_empty()).then(|| {
                 let what = if p.source { "source" } else { "victim" };
                 format!(
-                    "{what} \"{}\" is {} mm across, too small to see at this scale: \
-                     it is ringed in both views",
+                    "{what} \"{}\" is {} mm across, too small to see at the scale of \
+                     a view: it is ringed where it is",
                     p.id,
                     three_figures(size * 1e3)
                 )
@@ -271,8 +288,8 @@ fn tiny_notes(parts: &[Part], scale: f64) -> Vec<String> {
 /// The largest extent of a part along x, y or z, m.
 fn extent(p: &Part) -> f64 {
     let pts: Vec<Vec3> = p.paths.iter().flatten().copied().collect();
-    let (lo, hi) = fit(&pts);
-    (0..3).map(|k| hi[k] - lo[k]).fold(0.0, f64::max) / 1.2
+    let (lo, hi) = bounds(&pts);
+    (0..3).map(|k| hi[k] - lo[k]).fold(0.0, f64::max)
 }
 
 fn draw_panel(root: &Root<'_>, p: &Panel, scene: &Scene, parts: &[Part]) -> Result<(), PlotError> {

@@ -234,7 +234,10 @@ position = ["1.5 m", "0 m", "0 m"]
     let rings = doc
         .descendants()
         .filter(|n| n.has_tag_name("circle"))
-        .filter(|n| n.attribute("stroke").is_some_and(|c| c.eq_ignore_ascii_case(VICTIM)))
+        .filter(|n| {
+            n.attribute("stroke")
+                .is_some_and(|c| c.eq_ignore_ascii_case(VICTIM))
+        })
         .count();
     assert_eq!(rings, 2, "one ring per view");
 }

@@ -620,7 +620,19 @@ fn draw_part(
         right = c.0 + 10;
     }
     let at = (right + 5, y0.min((y0 + y1) / 2 - 8));
-    labels.place(part.id.clone(), at, x0 - 5, colour, false);
+    let (x, y) = labels.place(part.id.clone(), at, x0 - 5, colour, false);
+    // A leader from a label set apart from its part to the part's nearest point.
+    let (w, h) = (text_width(&part.id), LABEL as i32 + 3);
+    let edge = |q: &Px| (q.0.clamp(x, x + w), q.1.clamp(y, y + h));
+    let gap = |q: &Px| {
+        let e = edge(q);
+        f64::from(q.0 - e.0).hypot(f64::from(q.1 - e.1))
+    };
+    if let Some(near) = all.iter().min_by(|a, b| gap(a).total_cmp(&gap(b)))
+        && gap(near) > 16.0
+    {
+        labels.leaders.push((edge(near), *near));
+    }
     Ok(())
 }
 
@@ -670,6 +682,7 @@ struct Labels {
     frame: [i32; 4],
     taken: Vec<[i32; 4]>,
     queue: Vec<(Px, String, RGBColor)>,
+    leaders: Vec<(Px, Px)>,
 }
 
 impl Labels {
@@ -678,12 +691,14 @@ impl Labels {
             frame,
             taken: Vec::new(),
             queue: Vec::new(),
+            leaders: Vec::new(),
         }
     }
 
     /// Places `text` with its top left at `at` or as near as it is free, looking upwards
     /// first when `up`, else alternately below and above.
-    fn place(&mut self, text: String, at: Px, left: i32, colour: RGBColor, up: bool) {
+    /// Returns the top left taken, px.
+    fn place(&mut self, text: String, at: Px, left: i32, colour: RGBColor, up: bool) -> Px {
         let w = text_width(&text);
         let h = LABEL as i32 + 3;
         let [l, t, r, b] = self.frame;
@@ -710,10 +725,22 @@ impl Labels {
             .unwrap_or(fit(at.1));
         self.taken.push([x, y, x + w, y + h]);
         self.queue.push(((x, y), text, colour));
+        (x, y)
     }
 
     /// Draws the placed labels on a light backing.
     fn draw(&self, root: &Root<'_>) -> Result<(), PlotError> {
+        for (a, b) in &self.leaders {
+            let end = (
+                b.0 + (a.0 - b.0).signum() * 3,
+                b.1 + (a.1 - b.1).signum() * 3,
+            );
+            root.draw(&PathElement::new(
+                [*a, end],
+                GREY_700.mix(0.8).stroke_width(1),
+            ))
+            .map_err(err)?;
+        }
         for ((x, y), text, colour) in &self.queue {
             let (w, h) = (text_width(text), LABEL as i32 + 3);
             let back = [(x - 2, *y), (x + w + 1, y + h)];

@@ -595,7 +595,7 @@ fn draw_part(
                 .map_err(err)?;
         } else {
             let style = colour.stroke_width(2);
-            root.draw(&DashedPathElement::new(px.clone(), 8, 5, style))
+            root.draw(&DashedPathElement::new(edge_on(&px), 8, 5, style))
                 .map_err(err)?;
         }
         all.extend(px);
@@ -634,6 +634,26 @@ fn draw_part(
         labels.leaders.push((edge(near), *near));
     }
     Ok(())
+}
+
+/// A loop seen edge-on (its drawing at most 2 px thick) as one line between its ends, so
+/// that the dashes of its near and far sides do not fill each other's gaps.
+fn edge_on(px: &[Px]) -> Vec<Px> {
+    let (Some(x0), Some(x1)) = (px.iter().min_by_key(|q| q.0), px.iter().max_by_key(|q| q.0))
+    else {
+        return px.to_vec();
+    };
+    let (Some(y0), Some(y1)) = (px.iter().min_by_key(|q| q.1), px.iter().max_by_key(|q| q.1))
+    else {
+        return px.to_vec();
+    };
+    if y1.1 - y0.1 <= 2 && x1.0 - x0.0 > 2 {
+        vec![*x0, *x1]
+    } else if x1.0 - x0.0 <= 2 && y1.1 - y0.1 > 2 {
+        vec![*y0, *y1]
+    } else {
+        px.to_vec()
+    }
 }
 
 /// A dipole: a ring with an arrow along the moment's part in the view, or with a dot

@@ -208,6 +208,42 @@ fn design_options_are_labelled_and_an_empty_scene_is_refused() {
     );
 }
 
+/// The 10 mm coil and the 5 mm pickup 20 mm above it (tests/fixtures), the pickup in a
+/// 14 mm steel can with 0.5 mm walls.
+fn canned() -> Scene {
+    let base = include_str!("fixtures/coil-over-pickup.toml");
+    let text = format!(
+        "{base}\n[[enclosure]]\nid = \"can\"\nsize = [\"14 mm\", \"14 mm\", \"14 mm\"]\n\
+         position = [0, 0, \"20 mm\"]\nmaterial = \"steel\"\nthickness = \"0.5 mm\"\n\
+         contains = [\"pickup\"]\n"
+    );
+    Scene::parse("can.toml", &text).unwrap()
+}
+
+/// The can's outer walls are a 14 mm square round the coil's axis in the plan view.
+#[test]
+fn an_enclosure_is_drawn_to_scale_and_labelled() {
+    let d = read(&scene_views_svg(&canned()).unwrap());
+    let mm = d.px_per_mm.0;
+    let (coil, can) = (bbox(&d.strokes[SOURCE]), bbox(&d.strokes[SHIELD]));
+    assert!(
+        ((can.2 - can.0) / mm - 14.0).abs() < 0.3,
+        "{can:?}, {mm} px/mm"
+    );
+    assert!(
+        ((can.3 - can.1) / mm - 14.0).abs() < 0.3,
+        "{can:?}, {mm} px/mm"
+    );
+    let dx = 0.5 * (can.0 + can.2 - coil.0 - coil.2);
+    let dy = 0.5 * (can.1 + can.3 - coil.1 - coil.3);
+    assert!(dx.hypot(dy) < 0.2 * mm, "centres {coil:?} {can:?}");
+    assert!(
+        d.texts.iter().any(|t| t == "can (enclosure)"),
+        "{:?}",
+        d.texts
+    );
+}
+
 /// A 2 mm loop 1.5 m from a 1 m loop is about half a pixel across: it is ringed in
 /// both views and a note gives its size.
 #[test]
@@ -321,6 +357,7 @@ fn write_demo_scene_views() {
         let name = path.file_stem().unwrap().to_string_lossy().to_string();
         std::fs::write(out.join(format!("{name}.svg")), svg).unwrap();
     }
+    std::fs::write(out.join("can.svg"), scene_views_svg(&canned()).unwrap()).unwrap();
     let scene = Scene::parse("scale.toml", SCENE).unwrap();
     std::fs::write(
         out.join("scale-check.svg"),

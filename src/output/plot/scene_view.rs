@@ -149,8 +149,12 @@ pub fn scene_views_svg(scene: &Scene) -> Result<String, String> {
         root.fill(&WHITE).map_err(err)?;
         let centre = Pos::new(HPos::Center, VPos::Top);
         let title = ("sans-serif", 19).into_font().color(&BLACK).pos(centre);
-        root.draw_text(&scene.title, &title, (WIDTH / 2, 10))
-            .map_err(err)?;
+        let name = if scene.title.trim().is_empty() {
+            "Scene views"
+        } else {
+            scene.title.as_str()
+        };
+        root.draw_text(name, &title, (WIDTH / 2, 10)).map_err(err)?;
         let sub = ("sans-serif", 13).into_font().color(&GREY_700).pos(centre);
         let line = if shared {
             "The scene to scale: both views share one scale (see the scale bars)"
@@ -589,7 +593,7 @@ fn draw_part(
     for path in &part.paths {
         let px = thin(p, path, stride);
         // Close turns of a winding in one px lines, so that they stay apart.
-        let width = if px.len() > SHORT { 1 } else { 2 };
+        let width = if winding(&px) { 1 } else { 2 };
         if part.source {
             root.draw(&PathElement::new(px.clone(), colour.stroke_width(width)))
                 .map_err(err)?;
@@ -634,6 +638,20 @@ fn draw_part(
         labels.leaders.push((edge(near), *near));
     }
     Ok(())
+}
+
+/// Whether a drawn path goes round more than once: longer than one and a half times the
+/// perimeter of its box.
+fn winding(px: &[Px]) -> bool {
+    let len: f64 = px
+        .windows(2)
+        .map(|w| f64::from(w[1].0 - w[0].0).hypot(f64::from(w[1].1 - w[0].1)))
+        .sum();
+    let span = |f: fn(&Px) -> i32| {
+        let v = px.iter().map(f);
+        f64::from(v.clone().max().unwrap_or(0) - v.min().unwrap_or(0))
+    };
+    len > 3.0 * (span(|q| q.0) + span(|q| q.1))
 }
 
 /// A loop seen edge-on (its drawing at most 2 px thick) as one line between its ends, so

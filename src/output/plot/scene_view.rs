@@ -201,7 +201,7 @@ fn parts(scene: &Scene) -> Vec<Part> {
 /// The views placed from the top of the figure, whether they share one scale, and the
 /// height (px) they fill. Each view's best scale (px/m) fits its parts with a margin of a
 /// tenth of their larger extent into the width and `MAX_PANEL`; both views take the
-/// smaller of the two unless one is more than twice the other.
+/// smaller of the two unless one is more than four times the other.
 fn layout(scene: &Scene, lo: [f64; 3], hi: [f64; 3]) -> (Vec<Panel>, bool, i32) {
     let w = f64::from(WIDTH - LEFT - RIGHT);
     let span = |view: View| {
@@ -214,7 +214,7 @@ fn layout(scene: &Scene, lo: [f64; 3], hi: [f64; 3]) -> (Vec<Panel>, bool, i32) 
         (w / a).min(MAX_PANEL / b)
     };
     let (plan, side) = (best(PLAN), best(SIDE));
-    let shared = plan.max(side) < 2.0 * plan.min(side);
+    let shared = plan.max(side) < 4.0 * plan.min(side);
     let mut top = TITLE + HEAD;
     let panels = [(PLAN, plan), (SIDE, side)]
         .into_iter()

@@ -356,6 +356,17 @@ fn grid(root: &Root<'_>, p: &Panel, step: f64) -> Result<(), PlotError> {
             .map_err(err)?;
     }
     let (b0, b1) = (p.y0, p.y0 + f64::from(p.h) / p.scale);
+    // A low frame gets finer vertical ticks (the next 1-2-5 steps down) to show two.
+    let mut step = step;
+    while (b1 / step).floor() - (b0 / step).ceil() < 1.0 && step * p.scale > 25.0 {
+        let base = 10f64.powf(step.log10().floor());
+        let m = (step / base).round();
+        step = if m == 1.0 {
+            0.5 * base
+        } else {
+            0.5 * m.min(4.0) * base
+        };
+    }
     for k in (b0 / step).ceil() as i64..=(b1 / step).floor() as i64 {
         let y = p.plane(p.x0, k as f64 * step).1.round() as i32;
         root.draw(&PathElement::new(

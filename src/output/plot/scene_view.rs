@@ -1,12 +1,16 @@
 //! The scene drawn to scale for a design review: a plan view (x right, y up, looking
-//! down −z) above a side view (x right, z up, looking along +y). Both views share one
-//! scale, equal on both axes, and the same x range, so that a part sits above itself.
-//! Sources are solid lines, victims dashed, fitted sheets filled bands with solid edges,
-//! design options (`fitted = false`) faded bands with dotted edges; enclosures are their
-//! outer and inner wall outlines. Sheets are infinite: a band is the cut of the sheet by
-//! the plane through the middle of the drawn parts (the plan's middle z, the side's
-//! middle y); a sheet parallel to a view is named in it instead. Long polylines are
-//! thinned to one point per pixel and at most `BUDGET` points per view.
+//! down −z) above a side view (x right, z up, looking along +y). Both views usually
+//! share one scale, equal on both axes, and the same x range, so that a part sits above
+//! itself; when their best scales differ more than fourfold (a 2 m cable run beside a
+//! 30 mm cross-section) each view takes its own. Sources are solid lines, victims
+//! dashed, fitted sheets filled bands with solid edges, design options (`fitted =
+//! false`) faded bands with dotted edges; enclosures are their outer and inner wall
+//! outlines. Sheets are infinite: a band is the cut of the sheet by the plane through
+//! the middle of the drawn parts (the plan's middle z, the side's middle y); a sheet
+//! parallel to a view is named under it instead. Long polylines are thinned to one point
+//! per pixel and at most `BUDGET` points per view; a part too small to see is ringed and
+//! noted. Labels are placed clear of each other, inside the frame, with a leader when
+//! set apart from their part.
 
 use super::{PlotError, err, three_figures};
 use crate::Scene;
@@ -111,10 +115,14 @@ impl Panel {
     }
 }
 
-/// The plan and side views of `scene` in one SVG document, 900 px wide. Lengths on the
-/// axes are in mm, with a scale bar; both views have the same scale in px per mm on both
-/// axes. Errors (one line) when the scene has neither sources nor victims, or when its
-/// coordinates (m) are not finite.
+/// The plan view (x right, y up) above the side view (x right, z up) of `scene`, in one
+/// SVG document 900 px wide. The scene's coordinates are in m; the axes are labelled in
+/// mm and each view has a scale bar. Within a view 1 mm is as many px across as up; the
+/// two views share that scale (px per mm) unless their best scales differ more than
+/// fourfold, which the subtitle then says. Every source, victim, sheet and enclosure is
+/// drawn and labelled with its id. A scene without victims or without sources draws
+/// what it has; one with neither, or with a coordinate that is not finite, is an error
+/// (one line).
 pub fn scene_views_svg(scene: &Scene) -> Result<String, String> {
     let parts = parts(scene);
     let mut pts: Vec<Vec3> = parts

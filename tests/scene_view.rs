@@ -191,7 +191,7 @@ fn design_options_are_labelled_and_an_empty_scene_is_refused() {
     assert!(
         d.texts
             .iter()
-            .any(|t| t == "plate (infinite sheet, option)")
+            .any(|t| t == "plate (infinite sheet) (option)")
     );
     let mut empty = scene.clone();
     empty.sources.clear();

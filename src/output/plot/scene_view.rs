@@ -428,11 +428,7 @@ fn scale_bar(root: &Root<'_>, p: &Panel, step: f64) -> Result<(), PlotError> {
 fn sheet(root: &Root<'_>, p: &Panel, s: &Sheet, labels: &mut Labels) -> Result<(), PlotError> {
     let (n, o, t) = (s.normal, s.origin, s.thickness());
     let (nh, nv, nd) = (n[p.view.h], n[p.view.v], n[p.view.d]);
-    let kind = if s.fitted {
-        "infinite sheet"
-    } else {
-        "infinite sheet, option"
-    };
+    let kind = kind(s);
     if nh.hypot(nv) < 1e-6 {
         return Ok(());
     }
@@ -485,9 +481,19 @@ fn sheet(root: &Root<'_>, p: &Panel, s: &Sheet, labels: &mut Labels) -> Result<(
         (left.0 + 6, left.1 - i32::try_from(LABEL).unwrap_or(13) - 6)
     };
     let left = px.iter().map(|q| q.0).min().unwrap_or(anchor.0) - 5;
-    let text = format!("{} ({kind})", s.id);
+    let text = format!("{} {kind}", s.id);
     labels.place(text, anchor, left, SHIELD_TEXT, nh.abs() < nv.abs());
     Ok(())
+}
+
+/// What a sheet's label says it is: "(infinite sheet)", and "(option)" for a design
+/// option that is not fitted.
+fn kind(s: &Sheet) -> &'static str {
+    if s.fitted {
+        "(infinite sheet)"
+    } else {
+        "(infinite sheet) (option)"
+    }
 }
 
 /// The line under a view that names a sheet lying parallel to it, if `s` does.
@@ -497,13 +503,9 @@ fn parallel_note(view: View, s: &Sheet) -> Option<String> {
         return None;
     }
     let (a, b) = (o[view.d], o[view.d] + t * n[view.d]);
-    let kind = if s.fitted {
-        "infinite sheet"
-    } else {
-        "infinite sheet, option"
-    };
+    let kind = kind(s);
     Some(format!(
-        "{} ({kind}) lies parallel to this view at {} = {} … {} mm: not drawn here",
+        "{} {kind} lies parallel to this view at {} = {} … {} mm: not drawn here",
         s.id,
         AXES[view.d],
         mm(a.min(b)),

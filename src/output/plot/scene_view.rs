@@ -505,11 +505,11 @@ fn parallel_note(view: View, s: &Sheet) -> Option<String> {
     let (a, b) = (o[view.d], o[view.d] + t * n[view.d]);
     let kind = kind(s);
     Some(format!(
-        "{} {kind} lies parallel to this view at {} = {} … {} mm: not drawn here",
+        "{} {kind} lies parallel to this view: from {} = {} mm, {} thick; not drawn here",
         s.id,
         AXES[view.d],
         mm(a.min(b)),
-        mm(a.max(b))
+        crate::units::format_si(t, "m", 3)
     ))
 }
 

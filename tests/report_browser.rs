@@ -15,7 +15,9 @@ use std::process::Command;
 const SCENE: &str = "scenes/choke-thermocouple.toml";
 
 fn scratch(name: &str) -> PathBuf {
-    let d = PathBuf::from(env!("CARGO_TARGET_TMPDIR")).join("report-browser").join(name);
+    let d = PathBuf::from(env!("CARGO_TARGET_TMPDIR"))
+        .join("report-browser")
+        .join(name);
     let _ = std::fs::remove_dir_all(&d);
     std::fs::create_dir_all(&d).unwrap();
     d
@@ -117,7 +119,11 @@ fn the_report_renders_and_prints_in_a_real_browser() {
     let mut colours: Vec<[u8; 3]> = pixels.clone();
     colours.sort_unstable();
     colours.dedup();
-    assert!(share > 0.02, "only {:.3} % of the screenshot is inked", 100.0 * share);
+    assert!(
+        share > 0.02,
+        "only {:.3} % of the screenshot is inked",
+        100.0 * share
+    );
     assert!(colours.len() > 50, "only {} colours", colours.len());
 
     // Print to PDF: A4 pages, more than one, with the page's words as text.
@@ -172,7 +178,7 @@ fn decode(path: &Path) -> (u32, u32, Vec<[u8; 3]>) {
         std::fs::File::open(path).expect("the screenshot was written"),
     ));
     let mut reader = decoder.read_info().unwrap();
-    let mut buf = vec![0; reader.output_buffer_size().unwrap()];
+    let mut buf = vec![0; reader.output_buffer_size()];
     let frame = reader.next_frame(&mut buf).unwrap();
     let bytes = &buf[..frame.buffer_size()];
     let step = match frame.color_type {

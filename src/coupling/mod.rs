@@ -122,17 +122,17 @@ impl SourceCoupling {
     ) -> Self {
         let mut out = SourceCoupling::new(id, turns * model.flux, lines, tail, model.converged);
         if model.is_shielded() {
-            // Above the listed lines the shielded coupling is taken as that of the
-            // highest one (an estimate; for conducting sheets it only falls further).
-            let top = lines.last().map_or(0.0, |l| l.frequency);
-            let m_top = turns * model.shielded_flux(top).norm();
-            out.omitted = OmittedEmf::new(tail, lines, m_top, false);
+            let mut m_top = 0.0;
             for l in &mut out.lines {
                 let phi = model.shielded_flux(l.frequency);
                 let free = l.emf;
                 l.emf = -Complex64::i() * (TAU * l.frequency) * turns * phi * l.current;
                 l.shielding_db = shielding_db(free.norm(), l.emf.norm());
+                m_top = turns * phi.norm();
             }
+            // Above the listed lines the shielded coupling is taken as that of the
+            // highest one (an estimate; for conducting sheets it only falls further).
+            out.omitted = OmittedEmf::new(tail, lines, m_top, false);
         }
         out
     }
@@ -205,14 +205,26 @@ impl Total {
     /// its sources' omitted lines. Omitted lines are taken at frequencies apart from
     /// every listed one.
     pub fn new(by_frequency: &[(f64, Complex64)], sources: &[SourceCoupling]) -> Total {
+        Total::from_parts(
+            by_frequency,
+            sources.iter().map(|s| (s.id.as_str(), s.omitted.clone())),
+        )
+    }
+
+    /// As [`Total::new`] from each source's id and omitted EMF (V rms), for totals of
+    /// something other than the open-circuit EMF (the voltage across a load).
+    pub fn from_parts<'a>(
+        by_frequency: &[(f64, Complex64)],
+        omitted_by_source: impl IntoIterator<Item = (&'a str, OmittedEmf)>,
+    ) -> Total {
         let listed = total_rms(by_frequency);
         let mut omitted = 0.0;
         let mut exact = true;
         let mut parts = 0;
-        for s in sources {
-            match &s.omitted {
-                OmittedEmf::Diverges => return Total::Diverges(s.id.clone()),
-                OmittedEmf::Rms { volts, exact: e } if *volts > 0.0 => {
+        for (id, part) in omitted_by_source {
+            match part {
+                OmittedEmf::Diverges => return Total::Diverges(id.to_string()),
+                OmittedEmf::Rms { volts, exact: e } if volts > 0.0 => {
                     omitted += volts;
                     exact &= e;
                     parts += 1;

@@ -93,23 +93,17 @@ fn load_total(
         .iter()
         .map(|&(f, e)| (f, load_voltage(e, f, r, l)))
         .collect();
-    let divided: Vec<SourceCoupling> = sources
-        .iter()
-        .map(|s| {
-            let top = s.lines.last().map_or(0.0, |x| x.frequency);
-            let k = load_voltage(Complex64::new(1.0, 0.0), top, r, l).norm();
-            let omitted = match &s.omitted {
-                OmittedEmf::Rms { volts, .. } => OmittedEmf::Rms {
-                    volts: volts * k,
-                    exact: *volts == 0.0,
-                },
-                other => other.clone(),
-            };
-            SourceCoupling {
-                omitted,
-                ..s.clone()
-            }
-        })
-        .collect();
-    Total::new(&v, &divided)
+    let divided = sources.iter().map(|s| {
+        let top = s.lines.last().map_or(0.0, |x| x.frequency);
+        let k = load_voltage(Complex64::new(1.0, 0.0), top, r, l).norm();
+        let omitted = match &s.omitted {
+            OmittedEmf::Rms { volts, .. } => OmittedEmf::Rms {
+                volts: volts * k,
+                exact: *volts == 0.0,
+            },
+            other => other.clone(),
+        };
+        (s.id.as_str(), omitted)
+    });
+    Total::from_parts(&v, divided)
 }

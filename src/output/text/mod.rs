@@ -213,8 +213,7 @@ fn fmt_point(p: &crate::field::Vec3) -> String {
 
 /// A unit direction as `[x, y, z]` to three decimals, without "-0.000".
 pub(crate) fn fmt_dir(d: &Vec3) -> String {
-    let c = |x: f64| if x.abs() < 5e-4 { 0.0 } else { x };
-    format!("[{:.3}, {:.3}, {:.3}]", c(d.x), c(d.y), c(d.z))
+    format!("[{}, {}, {}]", fixed(d.x, 3), fixed(d.y, 3), fixed(d.z, 3))
 }
 
 /// c/n, or 0 when n is 0.
